@@ -6,7 +6,7 @@ const config = {
 	preprocess: vitePreprocess(),
 	compilerOptions: { runes: true },
 	kit: {
-		adapter: adapter({ out: 'build', envPrefix: '' }),
+		adapter: adapter({ out: process.env.BIASLINE_BUILD_DIR || 'build' }),
 		// Forms are posted by the same origin only; stations use bearer tokens on +server.ts routes.
 		csrf: { trustedOrigins: [] }
 	}

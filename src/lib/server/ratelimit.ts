@@ -1,0 +1,41 @@
+// Fixed-window rate limits kept in PostgreSQL, so every app instance shares the same counters.
+import { QueryTypes } from 'sequelize';
+import { db } from './db';
+
+export type LimitState = { blocked: boolean; count: number; retryAfterS: number };
+
+/** Reads a counter without changing it; blocked when `limit` hits already fell in the window. */
+export async function peekLimit(key: string, limit: number, windowS: number): Promise<LimitState> {
+	const rows = await db().query<{ count: number; remaining: number }>(
+		`SELECT count, extract(epoch FROM window_start + make_interval(secs => :w) - now())::float8 AS remaining
+		 FROM rate_limits WHERE key = :key`,
+		{ replacements: { key, w: windowS }, type: QueryTypes.SELECT }
+	);
+	const row = rows[0];
+	if (!row || row.remaining <= 0) return { blocked: false, count: 0, retryAfterS: 0 };
+	return { blocked: row.count >= limit, count: row.count, retryAfterS: Math.max(1, Math.ceil(row.remaining)) };
+}
+
+/** Counts one hit in the key's current window (a new window starts when the old one has ended). */
+export async function recordHit(key: string, windowS: number): Promise<number> {
+	const rows = await db().query<{ count: number }>(
+		`INSERT INTO rate_limits AS r (key, window_start, count) VALUES (:key, now(), 1)
+		 ON CONFLICT (key) DO UPDATE SET
+		   count = CASE WHEN r.window_start + make_interval(secs => :w) <= now() THEN 1 ELSE r.count + 1 END,
+		   window_start = CASE WHEN r.window_start + make_interval(secs => :w) <= now() THEN now() ELSE r.window_start END
+		 RETURNING count`,
+		{ replacements: { key, w: windowS }, type: QueryTypes.SELECT }
+	);
+	return rows[0]?.count ?? 1;
+}
+
+/** Forgets a counter (a successful sign-in clears the account's failures). */
+export async function resetLimit(key: string): Promise<void> {
+	await db().query('DELETE FROM rate_limits WHERE key = :key', { replacements: { key } });
+}
+
+/**
+ * Sign-in limits, common practice: at most 5 failed attempts per account and 30 attempts per
+ * client address in 15 minutes.
+ */
+export const SIGN_IN_LIMITS = { perAccount: 5, perAddress: 30, windowS: 15 * 60 } as const;

@@ -1,0 +1,75 @@
+// @ts-check
+// `npm start`: everything from a fresh clone to a running product (see README).
+import { spawn } from 'node:child_process';
+import path from 'node:path';
+import { createDatabase, dataDir, ensureBuild, ensureCluster, ensureDependencies, root, say, sessionKey } from './lib.mjs';
+
+const DEMO_ADMIN = { email: 'admin@corvane.example', password: 'biasline-admin' };
+
+ensureDependencies();
+const demo = (process.env.BIASLINE_DEMO ?? '1') === '1';
+const host = process.env.HOST || '127.0.0.1';
+const port = process.env.PORT || '3000';
+
+/** @type {null | Awaited<ReturnType<typeof ensureCluster>>} */
+let cluster = null;
+let databaseUrl = process.env.DATABASE_URL;
+if (!databaseUrl) {
+	cluster = await ensureCluster();
+	await createDatabase(cluster.url('postgres'), 'biasline');
+	databaseUrl = cluster.url('biasline');
+} else {
+	say('DATABASE_URL is set: using it, no private cluster');
+}
+
+const buildDir = path.join(root, 'build');
+ensureBuild(buildDir);
+
+const env = {
+	...process.env,
+	DATABASE_URL: databaseUrl,
+	BIASLINE_DATA_DIR: dataDir(),
+	BIASLINE_SESSION_KEY: sessionKey(),
+	BIASLINE_DEMO: demo ? '1' : '0',
+	BIASLINE_ADMIN_EMAIL: process.env.BIASLINE_ADMIN_EMAIL || DEMO_ADMIN.email,
+	BIASLINE_ADMIN_PASSWORD: process.env.BIASLINE_ADMIN_PASSWORD || DEMO_ADMIN.password,
+	HOST: host,
+	PORT: port,
+	// adapter-node assumes https without ORIGIN; forms check the Origin header against it.
+	ORIGIN: process.env.ORIGIN || `http://${host === '0.0.0.0' ? '127.0.0.1' : host}:${port}`,
+	// Open event streams would otherwise hold a shutdown for 30 s.
+	SHUTDOWN_TIMEOUT: process.env.SHUTDOWN_TIMEOUT || '2',
+	BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT || '2M'
+};
+
+const app = spawn(process.execPath, [path.join(buildDir, 'index.js')], { env, stdio: 'inherit', cwd: root });
+const url = `http://${host}:${port}`;
+say(`Biasline is starting on ${url}`);
+say(`sign in as ${env.BIASLINE_ADMIN_EMAIL} / ${process.env.BIASLINE_ADMIN_PASSWORD ? '(your BIASLINE_ADMIN_PASSWORD)' : DEMO_ADMIN.password}`);
+if (demo) {
+	say('demo sign-ins (password "biasline-demo"): engineer noor.haddad@corvane.example, operator tomas.brandt@corvane.example');
+}
+say('press Ctrl-C to stop the app and the database');
+
+let stopping = false;
+async function shutdown(/** @type {string} */ why) {
+	if (stopping) return;
+	stopping = true;
+	say(`stopping (${why})…`);
+	if (app.exitCode === null) app.kill('SIGTERM');
+	await new Promise((r) => (app.exitCode !== null ? r(null) : app.once('exit', r)));
+	if (cluster?.started) {
+		say('stopping PostgreSQL…');
+		cluster.stop();
+	}
+	say('stopped');
+	process.exit(0);
+}
+process.on('SIGINT', () => void shutdown('SIGINT'));
+process.on('SIGTERM', () => void shutdown('SIGTERM'));
+app.on('exit', (code) => {
+	if (!stopping) {
+		say(`the app exited with code ${code}`);
+		void shutdown('app exited');
+	}
+});

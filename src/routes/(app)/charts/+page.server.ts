@@ -1,0 +1,7 @@
+import { requireArea } from '$lib/server/auth';
+import type { PageServerLoad } from './$types';
+
+export const load: PageServerLoad = (event) => {
+	requireArea(event, 'charts');
+	return {};
+};
