@@ -22,9 +22,6 @@ export async function migrate(sequelize: Sequelize): Promise<string[]> {
 			up: mod.up,
 			down: mod.down
 		}));
-	await sequelize.query(
-		'CREATE TABLE IF NOT EXISTS schema_migrations (name text PRIMARY KEY, applied_at timestamptz NOT NULL DEFAULT now())'
-	);
 	const umzug = new Umzug<Sequelize>({
 		migrations,
 		context: sequelize,
@@ -44,7 +41,16 @@ export async function migrate(sequelize: Sequelize): Promise<string[]> {
 			}
 		}
 	});
-	// One connection holds the session-level lock for the whole run.
+	// Created under the lock and committed before the run: two instances racing on IF NOT EXISTS
+	// can both try to create it, and umzug's queries (on other connections) must see it.
+	await sequelize.transaction(async (t) => {
+		await sequelize.query('SELECT pg_advisory_xact_lock(:k)', { replacements: { k: MIGRATION_LOCK }, transaction: t });
+		await sequelize.query(
+			'CREATE TABLE IF NOT EXISTS schema_migrations (name text PRIMARY KEY, applied_at timestamptz NOT NULL DEFAULT now())',
+			{ transaction: t }
+		);
+	});
+	// The transaction's connection holds the lock until the run ends; umzug's queries use others.
 	return sequelize.transaction(async (t) => {
 		await sequelize.query('SELECT pg_advisory_xact_lock(:k)', { replacements: { k: MIGRATION_LOCK }, transaction: t });
 		const applied = await umzug.up();

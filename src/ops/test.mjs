@@ -1,0 +1,115 @@
+// @ts-check
+// `npm test`: everything the tests need, then the tests. Unit and integration tests run in
+// vitest against a throwaway database on the private cluster; the browser tests run against the
+// built server on a second throwaway database. Extra arguments go to vitest (`npm test -- -t name`).
+import { spawn } from 'node:child_process';
+import { randomBytes } from 'node:crypto';
+import fs from 'node:fs';
+import path from 'node:path';
+import {
+	createDatabase,
+	dropDatabase,
+	ensureBuild,
+	ensureCluster,
+	ensureDebianPackages,
+	ensureDependencies,
+	freePort,
+	root,
+	say,
+	waitForHttp
+} from './lib.mjs';
+
+const started = Date.now();
+ensureDependencies();
+ensureDebianPackages([
+	{ bin: '/usr/bin/chromium', pkg: 'chromium' },
+	{ bin: '/usr/bin/ngspice', pkg: 'ngspice' }
+]);
+
+// Tests keep their own data folder, so they never touch the demo's cluster data or tokens.
+process.env.BIASLINE_DATA_DIR = process.env.BIASLINE_TEST_DATA_DIR || path.join(root, '.test-data');
+const cluster = await ensureCluster();
+const tag = `${process.pid}_${randomBytes(3).toString('hex')}`;
+const dbUnit = `biasline_test_${tag}`;
+const dbE2e = `biasline_e2e_${tag}`;
+const adminUrl = cluster.url('postgres');
+await createDatabase(adminUrl, dbUnit);
+await createDatabase(adminUrl, dbE2e);
+
+const vitest = path.join(root, 'node_modules', '.bin', 'vitest');
+const extra = process.argv.slice(2);
+const baseEnv = {
+	...process.env,
+	BIASLINE_SESSION_KEY: randomBytes(32).toString('base64url'),
+	BIASLINE_TEST_ADMIN_URL: adminUrl,
+	BIASLINE_DEMO: '0'
+};
+
+/** @type {import('node:child_process').ChildProcess | null} */
+let server = null;
+let failed = false;
+
+/** @param {string[]} args @param {NodeJS.ProcessEnv} env */
+function vitestRun(args, env) {
+	return new Promise((resolve) => {
+		const p = spawn(vitest, ['run', ...args, ...extra], { stdio: 'inherit', cwd: root, env });
+		p.on('exit', (code) => resolve(code ?? 1));
+	});
+}
+
+async function cleanup() {
+	if (server && server.exitCode === null) {
+		server.kill('SIGTERM');
+		await new Promise((r) => server?.once('exit', r));
+	}
+	await dropDatabase(adminUrl, dbUnit).catch(() => {});
+	await dropDatabase(adminUrl, dbE2e).catch(() => {});
+	if (cluster.started) cluster.stop();
+}
+process.on('SIGINT', () => void cleanup().then(() => process.exit(130)));
+
+try {
+	say('unit and integration tests…');
+	const code1 = await vitestRun(['--project', 'unit', '--project', 'integration'], {
+		...baseEnv,
+		DATABASE_URL: cluster.url(dbUnit)
+	});
+	if (code1 !== 0) failed = true;
+
+	const buildDir = path.join(process.env.BIASLINE_DATA_DIR, 'build');
+	ensureBuild(buildDir);
+	const port = await freePort();
+	const url = `http://127.0.0.1:${port}`;
+	const logFile = path.join(process.env.BIASLINE_DATA_DIR, 'e2e-server.log');
+	const log = fs.openSync(logFile, 'w');
+	server = spawn(process.execPath, [path.join(buildDir, 'index.js')], {
+		cwd: root,
+		stdio: ['ignore', log, log],
+		env: {
+			...baseEnv,
+			DATABASE_URL: cluster.url(dbE2e),
+			BIASLINE_DEMO: '1',
+			BIASLINE_DATA_DIR: path.join(process.env.BIASLINE_DATA_DIR, 'e2e'),
+			HOST: '127.0.0.1',
+			PORT: String(port),
+			ORIGIN: url,
+			SHUTDOWN_TIMEOUT: '1'
+		}
+	});
+	await waitForHttp(`${url}/login`);
+	say(`browser and HTTP tests against ${url} (server log: ${path.relative(root, logFile)})…`);
+	const code2 = await vitestRun(['--project', 'e2e'], {
+		...baseEnv,
+		BIASLINE_E2E_URL: url,
+		BIASLINE_E2E_ADMIN_EMAIL: 'admin@corvane.example',
+		BIASLINE_E2E_ADMIN_PASSWORD: 'biasline-admin'
+	});
+	if (code2 !== 0) failed = true;
+} catch (e) {
+	console.error(e);
+	failed = true;
+} finally {
+	await cleanup();
+}
+say(`${failed ? 'FAILED' : 'all tests passed'} in ${Math.round((Date.now() - started) / 1000)} s`);
+process.exit(failed ? 1 : 0);

@@ -1,0 +1,54 @@
+// Shared by the HTTP and browser tests: the server under test was started by src/ops/test.mjs.
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { chromium, type Browser } from 'playwright-core';
+
+export function baseUrl(): string {
+	const url = process.env.BIASLINE_E2E_URL;
+	if (!url) throw new Error('BIASLINE_E2E_URL is not set: run the tests with npm test');
+	return url;
+}
+
+export const PEOPLE = {
+	admin: { email: process.env.BIASLINE_E2E_ADMIN_EMAIL ?? 'admin@corvane.example', password: process.env.BIASLINE_E2E_ADMIN_PASSWORD ?? 'biasline-admin' },
+	engineer: { email: 'noor.haddad@corvane.example', password: 'biasline-demo' },
+	operator: { email: 'tomas.brandt@corvane.example', password: 'biasline-demo' }
+} as const;
+
+export type Who = keyof typeof PEOPLE;
+
+/** Signs in through the API and returns the Cookie header value. */
+export async function cookieFor(who: Who): Promise<string> {
+	const res = await fetch(`${baseUrl()}/api/v1/session`, {
+		method: 'POST',
+		headers: { 'content-type': 'application/json' },
+		body: JSON.stringify(PEOPLE[who])
+	});
+	if (res.status !== 200) throw new Error(`sign-in as ${who} gave ${res.status}`);
+	const set = res.headers.get('set-cookie') ?? '';
+	return set.split(';')[0] ?? '';
+}
+
+export async function launch(): Promise<Browser> {
+	return chromium.launch({
+		executablePath: '/usr/bin/chromium',
+		args: [
+			'--headless',
+			'--no-sandbox',
+			'--disable-gpu',
+			'--disable-quic',
+			'--no-first-run',
+			'--disable-background-networking',
+			'--disable-component-update',
+			'--disable-sync'
+		]
+	});
+}
+
+/** Where screenshots go (ignored by git); SCREENSHOT_DIR overrides. */
+export function screenshotDir(): string {
+	const dir = process.env.SCREENSHOT_DIR ?? path.join(process.env.BIASLINE_DATA_DIR ?? os.tmpdir(), 'screenshots');
+	fs.mkdirSync(dir, { recursive: true });
+	return dir;
+}
