@@ -43,3 +43,13 @@ export function normalQuantile(p: number): number {
 	if (!(p > 0 && p < 1)) return Number.NaN;
 	return jStat.normal.inv(p, 0, 1);
 }
+
+/**
+ * Upper tail P(F > f) of the central F distribution, computed as the lower tail of 1/F ~ F(df2, df1)
+ * so that tiny p-values (1e-15 and below) keep their relative precision; 1 - cdf loses them.
+ */
+export function fUpperTailAccurate(f: number, df1: number, df2: number): number {
+	if (!(df1 > 0 && df2 > 0) || !Number.isFinite(f)) return Number.NaN;
+	if (f <= 0) return 1;
+	return jStat.centralF.cdf(1 / f, df2, df1);
+}
