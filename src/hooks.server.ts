@@ -4,6 +4,7 @@ import { building } from '$app/environment';
 import { randomUUID } from 'node:crypto';
 import { SESSION_COOKIE, userFromToken } from '$lib/server/auth';
 import { problem } from '$lib/server/problem';
+import { stationFromToken } from '$lib/server/stations';
 import { prepareDatabase } from '$lib/server/setup';
 
 export const init: ServerInit = async () => {
@@ -14,6 +15,12 @@ export const init: ServerInit = async () => {
 const authenticate: Handle = async ({ event, resolve }) => {
 	event.locals.user = await userFromToken(event.cookies.get(SESSION_COOKIE));
 	event.locals.station = null;
+	// Stations authenticate with a bearer token on the API only; a browser never sends one.
+	const auth = event.request.headers.get('authorization');
+	if (auth && event.url.pathname.startsWith('/api/')) {
+		const m = /^Bearer\s+(\S+)$/i.exec(auth);
+		event.locals.station = m?.[1] ? await stationFromToken(m[1]) : null;
+	}
 	return resolve(event);
 };
 

@@ -93,7 +93,8 @@ try {
 			HOST: '127.0.0.1',
 			PORT: String(port),
 			ORIGIN: url,
-			SHUTDOWN_TIMEOUT: '1'
+			SHUTDOWN_TIMEOUT: '1',
+			BODY_SIZE_LIMIT: '2M'
 		}
 	});
 	await waitForHttp(`${url}/login`);

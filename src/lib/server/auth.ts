@@ -143,3 +143,10 @@ export function requireApiArea(locals: App.Locals, area: Area): SessionUser {
 	if (!mayUse(user.role, area)) error(403, 'Your role does not allow this');
 	return user;
 }
+
+/** For station endpoints: the station behind the bearer token, else 401 (a person's session is not enough). */
+export function requireStation(locals: App.Locals): StationPrincipal {
+	const station = locals.station;
+	if (!station) error(401, locals.user ? 'This endpoint is for test stations: send the station token as a bearer token' : 'Send a valid station token as a bearer token');
+	return station;
+}

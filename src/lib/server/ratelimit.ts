@@ -39,3 +39,18 @@ export async function resetLimit(key: string): Promise<void> {
  * client address in 15 minutes.
  */
 export const SIGN_IN_LIMITS = { perAccount: 5, perAddress: 30, windowS: 15 * 60 } as const;
+
+/**
+ * Station posts, generous by default: 1 000 requests per station token in 10 s (a line posts a
+ * few batches a second). Counted in PostgreSQL so every app instance shares the budget.
+ */
+export const STATION_LIMITS = { perWindow: 1000, windowS: 10 } as const;
+
+/** Counts a station request; the seconds to wait when over the limit, else null. */
+export async function stationOverLimit(stationId: number): Promise<number | null> {
+	const key = `station:${stationId}`;
+	const count = await recordHit(key, STATION_LIMITS.windowS);
+	if (count <= STATION_LIMITS.perWindow) return null;
+	const state = await peekLimit(key, STATION_LIMITS.perWindow, STATION_LIMITS.windowS);
+	return Math.max(1, state.retryAfterS);
+}

@@ -1,0 +1,52 @@
+// Schemas of the station endpoints (public contract, SI units).
+import { z } from 'zod';
+import { LotNumber } from './setup';
+
+const finite = (what: string) => z.number({ error: `${what} must be a number` }).finite({ error: `${what} must be finite` });
+
+export const CalibrationBody = z.object({
+	references: z
+		.array(
+			z.object({
+				capacitanceF: finite('capacitanceF').positive({ error: 'capacitanceF must be above 0' }).max(1e-6),
+				resonanceHz: finite('resonanceHz').positive({ error: 'resonanceHz must be above 0' }).max(1e10)
+			})
+		)
+		.min(2, { error: 'Give two or more reference capacitors' })
+		.max(32)
+});
+
+export const ResultPoint = z.object({
+	biasV: finite('biasV').min(0, { error: 'biasV is a reverse bias, 0 or more' }).max(1000),
+	resonanceHz: finite('resonanceHz').positive({ error: 'resonanceHz must be above 0' }).max(1e10),
+	bandwidthHz: finite('bandwidthHz').positive({ error: 'bandwidthHz must be above 0' }).max(1e10).optional()
+});
+
+export const ResultUnit = z.object({
+	serial: z.string({ error: 'serial is required' }).trim().min(1, { error: 'serial is required' }).max(80),
+	testedAt: z.iso.datetime({ offset: true, error: 'testedAt must be an ISO 8601 time with a zone' }),
+	kind: z.enum(['production', 'reference'], { error: 'kind is production or reference' }).default('production'),
+	temperatureC: finite('temperatureC').min(-60).max(200).optional(),
+	leakageA: finite('leakageA').min(0, { error: 'leakageA must be 0 or more' }).max(1).optional(),
+	points: z
+		.array(ResultPoint)
+		.min(1, { error: 'a unit needs at least one point' })
+		.max(64)
+		.superRefine((pts, ctx) => {
+			const seen = new Map<number, number>();
+			pts.forEach((p, i) => {
+				const j = seen.get(p.biasV);
+				if (j !== undefined) ctx.addIssue({ code: 'custom', path: [i, 'biasV'], message: `repeats points.${j}.biasV` });
+				else seen.set(p.biasV, i);
+			});
+		})
+});
+
+export const ResultsBody = z.object({
+	lot: LotNumber,
+	units: z.array(ResultUnit).min(1, { error: 'send 1 to 500 units' }).max(500, { error: 'send 1 to 500 units' })
+});
+
+export type ResultsBodyInput = z.infer<typeof ResultsBody>;
+
+export const IdempotencyKey = z.string().min(1).max(255).regex(/^[\x21-\x7e]+$/, { error: 'printable ASCII without spaces' });
