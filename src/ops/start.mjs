@@ -1,8 +1,9 @@
 // @ts-check
 // `npm start`: everything from a fresh clone to a running product (see README).
 import { spawn } from 'node:child_process';
+import fs from 'node:fs';
 import path from 'node:path';
-import { createDatabase, dataDir, ensureBuild, ensureCluster, ensureDependencies, root, say, sessionKey } from './lib.mjs';
+import { createDatabase, dataDir, ensureBuild, ensureCluster, ensureDependencies, root, say, sessionKey, waitForHttp } from './lib.mjs';
 
 const DEMO_ADMIN = { email: 'admin@corvane.example', password: 'biasline-admin' };
 
@@ -52,10 +53,16 @@ if (demo) {
 say('press Ctrl-C to stop the app and the database');
 
 let stopping = false;
+/** @type {import('node:child_process').ChildProcess | null} */
+let sim = null;
 async function shutdown(/** @type {string} */ why) {
 	if (stopping) return;
 	stopping = true;
 	say(`stopping (${why})…`);
+	if (sim && sim.exitCode === null) {
+		sim.kill('SIGTERM');
+		await new Promise((r) => (sim?.exitCode !== null ? r(null) : sim.once('exit', r)));
+	}
 	if (app.exitCode === null) app.kill('SIGTERM');
 	await new Promise((r) => (app.exitCode !== null ? r(null) : app.once('exit', r)));
 	if (cluster?.started) {
@@ -73,3 +80,21 @@ app.on('exit', (code) => {
 		void shutdown('app exited');
 	}
 });
+
+if (demo) {
+	// The demo's simulated stations: they calibrate, then post sweeps of their lots over HTTP.
+	await waitForHttp(`${env.ORIGIN}/login`, 120_000).catch(() => {});
+	const tokens = path.join(env.BIASLINE_DATA_DIR, 'demo-station-tokens.json');
+	for (let i = 0; i < 50 && !fs.existsSync(tokens); i++) await new Promise((r) => setTimeout(r, 200));
+	if (fs.existsSync(tokens) && !stopping) {
+		const log = fs.openSync(path.join(env.BIASLINE_DATA_DIR, 'station-sim.log'), 'a');
+		sim = spawn(
+			process.execPath,
+			[path.join(root, 'station-sim', 'cli.mjs'), '--url', env.ORIGIN, '--tokens', tokens, '--rate', process.env.BIASLINE_SIM_RATE || '1', '--serial-start', 'auto', '--seed', String(Date.now() % 1_000_000)],
+			{ stdio: ['ignore', log, log], cwd: root }
+		);
+		say(`simulated stations are testing parts (log: ${path.relative(root, path.join(env.BIASLINE_DATA_DIR, 'station-sim.log'))})`);
+	} else if (!stopping) {
+		say('no demo station tokens found: the simulated stations do not run');
+	}
+}

@@ -85,3 +85,5 @@ export const LotBody = z.object({
 	productCode: ProductCode,
 	quantity: z.number({ error: 'Quantity must be a whole number' }).int({ error: 'Quantity must be a whole number' }).positive().max(100_000_000)
 });
+
+export const LotStatusBody = z.object({ status: z.enum(['open', 'closed'], { error: 'status is open or closed' }) });

@@ -74,13 +74,15 @@ export const DEMO_LINES = [
 	{ name: 'Line B', description: 'Incoming screen, Halden works' }
 ] as const;
 
+// Each station starts with a lot loaded (the abrupt part on 100 µH tanks, the hyperabrupt part,
+// a few hundred pF, on 10 µH tanks so both resonate in the low megahertz).
 export const DEMO_STATIONS = [
-	{ name: 'A-01', line: 'Line A', inductanceH: 100e-6, strayF: 3.2 * pF, blockingF: 100e-9, arrangement: 'single' },
-	{ name: 'A-02', line: 'Line A', inductanceH: 100e-6, strayF: 2.9 * pF, blockingF: 100e-9, arrangement: 'single' },
-	{ name: 'A-03', line: 'Line A', inductanceH: 10e-6, strayF: 4.1 * pF, blockingF: null, arrangement: 'antiseries2' },
-	{ name: 'B-01', line: 'Line B', inductanceH: 10e-6, strayF: 3.6 * pF, blockingF: 100e-9, arrangement: 'single' },
-	{ name: 'B-02', line: 'Line B', inductanceH: 10e-6, strayF: 3.3 * pF, blockingF: 100e-9, arrangement: 'single' },
-	{ name: 'B-03', line: 'Line B', inductanceH: 100e-6, strayF: 5.0 * pF, blockingF: 47e-9, arrangement: 'parallel2' }
+	{ name: 'A-01', line: 'Line A', inductanceH: 100e-6, strayF: 3.2 * pF, blockingF: 100e-9, arrangement: 'single', lot: 'LT-26-1187' },
+	{ name: 'A-02', line: 'Line A', inductanceH: 100e-6, strayF: 2.9 * pF, blockingF: 100e-9, arrangement: 'single', lot: 'LT-26-1187' },
+	{ name: 'A-03', line: 'Line A', inductanceH: 10e-6, strayF: 4.1 * pF, blockingF: null, arrangement: 'antiseries2', lot: 'LT-26-2204' },
+	{ name: 'B-01', line: 'Line B', inductanceH: 10e-6, strayF: 3.6 * pF, blockingF: 100e-9, arrangement: 'single', lot: 'LT-26-2204' },
+	{ name: 'B-02', line: 'Line B', inductanceH: 10e-6, strayF: 3.3 * pF, blockingF: 100e-9, arrangement: 'single', lot: 'LT-26-2204' },
+	{ name: 'B-03', line: 'Line B', inductanceH: 100e-6, strayF: 5.0 * pF, blockingF: 47e-9, arrangement: 'parallel2', lot: 'LT-26-1187' }
 ] as const;
 
 export const DEMO_LOTS = [
@@ -105,7 +107,7 @@ export async function seedDemo(dataDir: string): Promise<boolean> {
 	const done = await db().query("SELECT 1 FROM meta WHERE key = 'demo-seeded'", { type: QueryTypes.SELECT });
 	if (done.length > 0) return false;
 	const hash = await hashPassword(DEMO_PASSWORD);
-	const tokens: { name: string; token: string; line: string }[] = [];
+	const tokens: { name: string; token: string; line: string; lot: string; product: string }[] = [];
 	await db().transaction(async (t) => {
 		for (const p of DEMO_PEOPLE) {
 			await db().query(
@@ -135,7 +137,8 @@ export async function seedDemo(dataDir: string): Promise<boolean> {
 		for (const s of DEMO_STATIONS) {
 			// Station tokens are 32 random bytes, so a fast hash is enough (no dictionary to guess from).
 			const token = `bst_${randomBytes(24).toString('base64url')}`;
-			tokens.push({ name: s.name, token, line: s.line });
+			const product = DEMO_LOTS.find((l) => l.number === s.lot)?.product ?? '';
+			tokens.push({ name: s.name, token, line: s.line, lot: s.lot, product });
 			await db().query(
 				`INSERT INTO stations (name, line_id, inductance_h, stray_f, blocking_f, arrangement, token_hash, token_hint, token_issued_at)
 				 VALUES (:name, :lineId, :l, :stray, :blocking, :arrangement, :hash, :hint, now())`,
@@ -160,6 +163,12 @@ export async function seedDemo(dataDir: string): Promise<boolean> {
 				 VALUES (:number, :productId, :quantity, :status, :disposition, CASE WHEN :status = 'closed' THEN now() ELSE NULL END)`,
 				{ replacements: { ...lot, productId: productIds.get(lot.product) }, transaction: t }
 			);
+		}
+		for (const s of DEMO_STATIONS) {
+			await db().query('UPDATE stations SET current_lot_id = (SELECT id FROM lots WHERE number = :lot) WHERE name = :name', {
+				replacements: { lot: s.lot, name: s.name },
+				transaction: t
+			});
 		}
 		await db().query("INSERT INTO meta (key, value) VALUES ('demo-seeded', to_jsonb(now()))", { transaction: t });
 	});

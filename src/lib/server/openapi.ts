@@ -3,6 +3,9 @@
 import { OpenAPIRegistry, OpenApiGeneratorV31 } from '@asteasolutions/zod-to-openapi';
 import { z } from 'zod';
 import { NewUserBody, SessionUserOut, SignInBody } from '$lib/schemas/people';
+import { LotBody, LotStatusBody, ProductBody, StationBody } from '$lib/schemas/setup';
+import { CalibrationBody, ResultsBody } from '$lib/schemas/station-api';
+import { UnitsQuery } from '$lib/schemas/query';
 
 const Problem = z
 	.object({
@@ -69,6 +72,150 @@ function build() {
 				content: { 'application/json': { schema: z.object({ id: z.number().int(), email: z.string(), role: z.string() }) } }
 			},
 			...problems(400, 401, 403, 409)
+		}
+	});
+
+	const pF = 1e-12;
+	const examplePlan = {
+		points: [{ biasV: 1, minF: 24.6 * pF, maxF: 28.4 * pF }, { biasV: 4 }, { biasV: 25, minF: 6.6 * pF, maxF: 7.7 * pF }],
+		ratio: { lowBiasV: 1, highBiasV: 25, min: 3.4 },
+		q: { biasV: 1, min: 150 },
+		leakage: { biasV: 25, maxA: 1e-8 },
+		matching: { setSize: 2, tolerancePct: 2.0 }
+	};
+	const jsonBody = (schema: z.ZodType, example: unknown) => ({ body: { content: { 'application/json': { schema, example } } } });
+	const ok = (description: string, example?: unknown) => ({ description, content: { 'application/json': { schema: z.object({}).loose(), ...(example ? { example } : {}) } } });
+
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/products',
+		summary: 'Products with their current plan (engineer, admin)',
+		security: [{ session: [] }],
+		responses: { 200: ok('Products'), ...problems(401, 403) }
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/products',
+		summary: 'Add a product with its spec plan, version 1 (engineer, admin)',
+		security: [{ session: [] }],
+		request: jsonBody(ProductBody, { code: 'KV-1405', name: 'Abrupt-junction varactor', family: 'abrupt', plan: examplePlan }),
+		responses: { 201: ok('Created', { id: 3, code: 'KV-1405', planVersion: 1 }), ...problems(400, 401, 403, 409) }
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/stations',
+		summary: 'Add a test station; the token is shown this once (admin)',
+		security: [{ session: [] }],
+		request: jsonBody(StationBody, { name: 'A-04', line: 'Line A', fixture: { inductanceH: 1e-4, strayF: 3e-12, blockingF: 1e-7, arrangement: 'single' } }),
+		responses: { 201: ok('Created', { id: 7, name: 'A-04', token: 'bst_…' }), ...problems(400, 401, 403, 409) }
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/stations/{id}/token',
+		summary: 'Issue a new station token (shown once); the old one stops working (admin)',
+		security: [{ session: [] }],
+		request: { params: z.object({ id: z.string() }) },
+		responses: { 201: ok('New token', { token: 'bst_…' }), ...problems(401, 403, 404) }
+	});
+	r.registerPath({
+		method: 'delete',
+		path: '/api/v1/stations/{id}/token',
+		summary: 'Revoke the station token at once (admin)',
+		security: [{ session: [] }],
+		request: { params: z.object({ id: z.string() }) },
+		responses: { 204: { description: 'Revoked' }, ...problems(401, 403, 404) }
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/lots',
+		summary: 'Open a lot of a product (operator and up)',
+		security: [{ session: [] }],
+		request: jsonBody(LotBody, { number: 'LT-26-1201', productCode: 'KV-1405', quantity: 5000 }),
+		responses: { 201: ok('Opened'), ...problems(400, 401, 403, 409) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/lots/{number}',
+		summary: 'A lot with its yield and bin counts (production parts only)',
+		security: [{ session: [] }],
+		request: { params: z.object({ number: z.string() }) },
+		responses: { 200: ok('Lot summary', { lot: { number: 'LT-26-1187' }, tested: 120, passed: 114, yieldPct: 95, bins: { '1': 114, '2': 6 } }), ...problems(401, 403, 404) }
+	});
+	r.registerPath({
+		method: 'patch',
+		path: '/api/v1/lots/{number}',
+		summary: 'Close or reopen a lot (operator and up); a closed lot refuses results',
+		security: [{ session: [] }],
+		request: { params: z.object({ number: z.string() }), ...jsonBody(LotStatusBody, { status: 'closed' }) },
+		responses: { 200: ok('Lot summary'), ...problems(400, 401, 403, 404, 409) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/lots/{number}/units',
+		summary: 'A page of the lot’s parts, newest first',
+		security: [{ session: [] }],
+		request: { params: z.object({ number: z.string() }), query: UnitsQuery },
+		responses: { 200: ok('Parts', { total: 1, units: [] }), ...problems(400, 401, 403, 404) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/lots/{number}/units.csv',
+		summary: 'The lot’s parts as CSV (RFC 4180), SI units',
+		security: [{ session: [] }],
+		request: { params: z.object({ number: z.string() }), query: UnitsQuery },
+		responses: { 200: { description: 'CSV', content: { 'text/csv': { schema: z.string() } } }, ...problems(400, 401, 403, 404) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/station',
+		summary: 'The calling station: fixture, calibration in force, current lot and its plan',
+		security: [{ station: [] }],
+		responses: { 200: ok('The station’s view of itself'), ...problems(401) }
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/calibrations',
+		summary: 'Calibrate the fixture from reference capacitors placed alone in the socket',
+		security: [{ station: [] }],
+		request: jsonBody(CalibrationBody, {
+			references: [
+				{ capacitanceF: 1.0e-11, resonanceHz: 4.4143e6 },
+				{ capacitanceF: 4.7e-11, resonanceHz: 2.2513e6 },
+				{ capacitanceF: 1.0e-10, resonanceHz: 1.569e6 },
+				{ capacitanceF: 2.2e-10, resonanceHz: 1.0669e6 }
+			]
+		}),
+		responses: { 201: ok('Calibration in force', { inductanceH: 1e-4, strayF: 3e-12, residualPpm: 12, validUntil: '2026-03-02T15:15:00.000Z' }), ...problems(400, 401, 409, 429) }
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/results',
+		summary: 'Post tested units (1 to 500); each is judged and answered with a bin',
+		security: [{ station: [] }],
+		request: {
+			headers: z.object({ 'Idempotency-Key': z.string().min(1).max(255) }),
+			...jsonBody(ResultsBody, {
+				lot: 'LT-26-1187',
+				units: [
+					{
+						serial: 'LT-26-1187-A-01-000123',
+						testedAt: '2026-03-02T07:15:00.000Z',
+						kind: 'production',
+						temperatureC: 24.8,
+						leakageA: 2.1e-10,
+						points: [
+							{ biasV: 1, resonanceHz: 2.9313e6, bandwidthHz: 1.17e4 },
+							{ biasV: 4, resonanceHz: 3.633e6, bandwidthHz: 1.26e4 },
+							{ biasV: 25, resonanceHz: 5.0015e6, bandwidthHz: 1.51e4 }
+						]
+					}
+				]
+			})
+		},
+		responses: {
+			201: ok('Judged and stored', { results: [{ serial: 'LT-26-1187-A-01-000123', bin: 1, pass: true, capacitanceF: [2.65e-11, 1.62e-11, 7.1e-12], q: [250, 289, 332], fit: null, failures: [] }] }),
+			200: { description: 'Replay of a stored answer (header Idempotent-Replayed: true)' },
+			...problems(400, 401, 404, 409, 413, 429)
 		}
 	});
 	r.registerPath({

@@ -9,7 +9,9 @@ import type { RequestHandler } from './$types';
 
 // 500 units of 32 points with every field is about 900 kB; the limit leaves room and no more.
 const MAX_BODY_BYTES = 1_048_576;
-const tooLarge = () => problem(413, `A results body may be at most ${MAX_BODY_BYTES} bytes; send fewer units per request`);
+// The unread rest of the body makes the connection unusable: tell the client not to reuse it.
+const tooLarge = () =>
+	problem(413, `A results body may be at most ${MAX_BODY_BYTES} bytes; send fewer units per request`, { headers: { connection: 'close' } });
 
 export const POST: RequestHandler = async ({ request, locals }) => {
 	const station = requireStation(locals);
