@@ -1,17 +1,13 @@
 import { randomUUID } from 'node:crypto';
 import { beforeAll, describe, expect, test } from 'vitest';
 import { baseUrl, cookieFor } from './helpers';
+import { abruptPartF as partF, pF, referenceReadings, resonanceHz, type TestFixture } from './physics';
 
 // The station interface of the public contract, against the built server and a real database.
-// Resonances are made in the test from the ideal tank identity f = 1/(2π√(L·C)) with
-// C = C_stray + (C_part in series with C_block): an independent statement of the physics.
+// Resonances come from the test's own statement of the tank physics (./physics.ts).
 
-const pF = 1e-12;
-const FIXTURE = { inductanceH: 100e-6, strayF: 3.0 * pF, blockingF: 100e-9, arrangement: 'single' as const };
-// An abrupt junction: Cj0 40 pF, Vj 0.75 V, M 0.5, Cp 0.3 pF (an invented part).
-const partF = (v: number) => (40 * pF) / Math.sqrt(1 + v / 0.75) + 0.3 * pF;
-const series = (a: number, b: number) => (a * b) / (a + b);
-const resonance = (partCapF: number) => 1 / (2 * Math.PI * Math.sqrt(FIXTURE.inductanceH * (FIXTURE.strayF + series(partCapF, FIXTURE.blockingF))));
+const FIXTURE: TestFixture = { inductanceH: 100e-6, strayF: 3.0 * pF, blockingF: 100e-9, arrangement: 'single' };
+const resonance = (partCapF: number) => resonanceHz(FIXTURE, partCapF);
 const BIASES = [1, 2, 4, 8, 15, 25];
 
 const tag = randomUUID().slice(0, 8);
@@ -40,8 +36,7 @@ async function tested(): Promise<number> {
 }
 
 async function calibrate(t = token) {
-	const references = [10, 47, 100, 220].map((c) => ({ capacitanceF: c * pF, resonanceHz: resonance(c * pF) }));
-	return post('/api/v1/calibrations', { references }, asStation(t));
+	return post('/api/v1/calibrations', { references: referenceReadings(FIXTURE) }, asStation(t));
 }
 
 beforeAll(async () => {

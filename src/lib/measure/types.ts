@@ -49,7 +49,8 @@ export type SpecPlan = {
 	fit?: { maxRmsPct: number };
 	matching?: { setSize: number; tolerancePct: number };
 	bins?: Partial<Record<SpecTestCategory, number>>;
-	spc?: { baselineParts?: number };
+	/** Control charts: baseline sizes and the rule ids enabled (see $lib/spc); the server uses them. */
+	spc?: { baselineParts?: number; referenceBaselineParts?: number; rules?: string[] };
 };
 
 /** One failed test; value null when the quantity could not be obtained at all. */

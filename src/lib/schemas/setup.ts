@@ -3,6 +3,7 @@
 import { z } from 'zod';
 import { validateSpecPlan } from '$lib/measure';
 import { ARRANGEMENTS } from '$lib/measure/types';
+import { ALL_RULE_IDS } from '$lib/spc/types';
 
 const positive = (what: string) => z.number({ error: `${what} must be a number` }).finite().positive({ error: `${what} must be above 0` });
 const nonNegative = (what: string) => z.number({ error: `${what} must be a number` }).finite().min(0, { error: `${what} must be 0 or more` });
@@ -24,7 +25,13 @@ export const SpecPlanSchema = z
 		fit: z.object({ maxRmsPct: positive('Fit limit') }).optional(),
 		matching: z.object({ setSize: z.number().int().min(2).max(16), tolerancePct: positive('Tolerance').max(50) }).optional(),
 		bins: z.record(z.enum(['capacitance', 'ratio', 'q', 'leakage', 'fit', 'measurement']), z.number().int().min(2).max(99)).optional(),
-		spc: z.object({ baselineParts: z.number().int().min(2).max(10_000).optional() }).optional()
+		spc: z
+			.object({
+				baselineParts: z.number().int().min(2).max(10_000).optional(),
+				referenceBaselineParts: z.number().int().min(2).max(1000).optional(),
+				rules: z.array(z.enum(ALL_RULE_IDS)).max(ALL_RULE_IDS.length).optional()
+			})
+			.optional()
 	})
 	.superRefine((plan, ctx) => {
 		const checked = validateSpecPlan(plan);

@@ -9,6 +9,7 @@ import type { StationPrincipal } from './auth';
 import { calibrationInForceAt } from './calibrations';
 import { db } from './db';
 import { getLot } from './lots';
+import { chartBatch, type OpenedAlarm, type SpcUnit } from './spc';
 import { getStation } from './stations';
 
 export type UnitAnswer = {
@@ -22,7 +23,7 @@ export type UnitAnswer = {
 };
 
 export type IngestOutcome =
-	| { ok: true; status: 200 | 201; replayed: boolean; body: { results: UnitAnswer[] } }
+	| { ok: true; status: 200 | 201; replayed: boolean; body: { results: UnitAnswer[] }; alarms: OpenedAlarm[] }
 	| { ok: false; status: 400 | 404 | 409; kind: string; detail: string; errors?: { path: string; message: string }[] };
 
 /** The hash that decides "the same body": SHA-256 of the request's bytes as sent. */
@@ -44,7 +45,7 @@ function replayOf(stored: StoredKey, hash: string): IngestOutcome {
 	if (stored.request_hash !== hash) {
 		return { ok: false, status: 409, kind: 'idempotency-conflict', detail: 'This Idempotency-Key was used with another body' };
 	}
-	return { ok: true, status: 200, replayed: true, body: stored.response };
+	return { ok: true, status: 200, replayed: true, body: stored.response, alarms: [] };
 }
 
 type PlanRow = { id: string; version: number; plan: SpecPlan; created_at: Date };
@@ -93,6 +94,7 @@ export async function ingestResults(
 
 	const answers: UnitAnswer[] = [];
 	const records: Record<string, unknown>[] = [];
+	const charted: Omit<SpcUnit, 'id'>[] = [];
 	const errors: { path: string; message: string }[] = [];
 	body.units.forEach((unit, i) => {
 		const testedAt = new Date(unit.testedAt);
@@ -114,6 +116,7 @@ export async function ingestResults(
 		}
 		const failures = answerFailures(evaluated.failures);
 		answers.push({ serial: unit.serial, bin: evaluated.bin, pass: evaluated.pass, capacitanceF: evaluated.capacitanceF, q: evaluated.q, fit: evaluated.fit, failures });
+		charted.push({ kind: unit.kind, lotId: lot.id, testedAt: unit.testedAt, biasV: unit.points.map((p) => p.biasV), capacitanceF: evaluated.capacitanceF, plan: version.plan });
 		records.push({
 			lot_id: lot.id,
 			station_id: station.id,
@@ -142,6 +145,7 @@ export async function ingestResults(
 	if (errors.length) return { ok: false, status: 400, kind: 'invalid-units', detail: 'Some units cannot be judged', errors };
 
 	const response = { results: answers };
+	let alarms: OpenedAlarm[] = [];
 	try {
 		await db().transaction(async (t) => {
 			// Claim the key first: a concurrent post with the same key waits here until this
@@ -158,17 +162,31 @@ export async function ingestResults(
 				transaction: t
 			});
 			if (open.length === 0) throw new LotClosed();
+			// Ids drawn first, so each stored part is known to its chart points without relying
+			// on the order of RETURNING rows.
+			const ids = await db().query<{ id: string }>("SELECT nextval('units_id_seq') AS id FROM generate_series(1, :n)", {
+				replacements: { n: records.length },
+				type: QueryTypes.SELECT,
+				transaction: t
+			});
+			records.forEach((r, i) => (r.id = Number(ids[i]?.id)));
 			// One statement for the whole batch: the rows travel as one JSON parameter.
 			await db().query(
-				`INSERT INTO units (lot_id, station_id, plan_version_id, calibration_id, serial, kind, tested_at, temperature_c, leakage_a,
+				`INSERT INTO units (id, lot_id, station_id, plan_version_id, calibration_id, serial, kind, tested_at, temperature_c, leakage_a,
 				   bin, pass, bias_v, resonance_hz, bandwidth_hz, capacitance_f, q, cj0_f, vj_v, m, cp_f, fit_rms_pct, failures)
-				 SELECT lot_id, station_id, plan_version_id, calibration_id, serial, kind, tested_at, temperature_c, leakage_a,
+				 SELECT id, lot_id, station_id, plan_version_id, calibration_id, serial, kind, tested_at, temperature_c, leakage_a,
 				   bin, pass, bias_v, resonance_hz, bandwidth_hz, capacitance_f, q, cj0_f, vj_v, m, cp_f, fit_rms_pct, failures
-				 FROM jsonb_to_recordset(CAST(:rows AS jsonb)) AS x(lot_id bigint, station_id bigint, plan_version_id bigint, calibration_id bigint,
+				 FROM jsonb_to_recordset(CAST(:rows AS jsonb)) AS x(id bigint, lot_id bigint, station_id bigint, plan_version_id bigint, calibration_id bigint,
 				   serial text, kind text, tested_at timestamptz, temperature_c float8, leakage_a float8, bin smallint, pass boolean,
 				   bias_v float8[], resonance_hz float8[], bandwidth_hz float8[], capacitance_f float8[], q float8[],
 				   cj0_f float8, vj_v float8, m float8, cp_f float8, fit_rms_pct float8, failures jsonb)`,
 				{ replacements: { rows: JSON.stringify(records) }, transaction: t }
+			);
+			alarms = await chartBatch(
+				t,
+				station.id,
+				lot.productId,
+				charted.map((c, i) => ({ ...c, id: Number(records[i]?.id) }))
 			);
 			await db().query('UPDATE stations SET last_seen_at = :now, current_lot_id = :lotId WHERE id = :id', {
 				replacements: { now, lotId: lot.id, id: station.id },
@@ -183,7 +201,7 @@ export async function ingestResults(
 		if (e instanceof LotClosed) return { ok: false, status: 409, kind: 'lot-closed', detail: `Lot ${lot.number} is closed` };
 		throw e;
 	}
-	return { ok: true, status: 201, replayed: false, body: response };
+	return { ok: true, status: 201, replayed: false, body: response, alarms };
 }
 
 

@@ -1,11 +1,11 @@
 /**
  * Benchmark (not a test): cost of one rule-engine `step` with every rule enabled, including
- * the JSON round trip the server does to store the state. Run: npx tsx src/lib/spc/step-benchmark.ts
+ * the JSON round trip the server does to store the state. Run: npx tsx tests/bench/spc-step.ts (or npm run bench)
  * The cost must not grow with the history, so it is measured after 1e3 and after 1e5 points.
  */
-import { cusumParameters, ewmaParameters } from './charts';
-import { initialRuleState, step } from './rules';
-import { ALL_RULE_IDS, type ChartRuleLimits, type RuleState } from './types';
+import { cusumParameters, ewmaParameters } from '../../src/lib/spc/charts';
+import { initialRuleState, step } from '../../src/lib/spc/rules';
+import { ALL_RULE_IDS, type ChartRuleLimits, type RuleState } from '../../src/lib/spc/types';
 
 const ewma = ewmaParameters({ target: 0, sigma: 1 });
 const cusum = cusumParameters({ target: 0, sigma: 1 });
