@@ -121,4 +121,44 @@ describe('control charts on every post', () => {
 		const we1 = (await alarms()).filter((a) => a.rule === 'WE1' && a.chart.characteristic === 'C@1V');
 		expect(we1.map((a) => a.status).sort()).toEqual(['closed', 'open']);
 	});
+
+	test('the individuals chart shows the frozen baseline limits: CL = mean, UCL/LCL = CL ± 3·MR̄/d2', async () => {
+		const list = await fetch(`${baseUrl()}/api/v1/charts?station=${stationName}`, { headers: { cookie: engineer } });
+		const charts = ((await list.json()) as { charts: { id: number; characteristic: string; status: string }[] }).charts;
+		const c1 = charts.find((c) => c.characteristic === 'C@1V');
+		expect(c1?.status).toBe('active');
+		const res = await fetch(`${baseUrl()}/api/v1/charts/${c1?.id}?view=imr&limit=1000`, { headers: { cookie: engineer } });
+		const detail = (await res.json()) as {
+			limits: { shewhart: { centerLine: number; upperControlLimit: number; lowerControlLimit: number } };
+			points: { value: number }[];
+			capability: { cpk: { value: number } } | null;
+			spec: { lowerSpecLimit: number; upperSpecLimit: number };
+		};
+		// NIST/SEMATECH e-Handbook 6.3.2.2: limits of an individuals chart are x̄ ± 3·MR̄/1.128.
+		const base = detail.points.slice(0, BASELINE.length).map((p) => p.value);
+		const xbar = base.reduce((a, b) => a + b, 0) / base.length;
+		const mr = base.slice(1).reduce((a, b, i) => a + Math.abs(b - (base[i] ?? 0)), 0) / (base.length - 1);
+		expect(detail.limits.shewhart.centerLine).toBeCloseTo(xbar, 9);
+		expect(detail.limits.shewhart.upperControlLimit - xbar).toBeCloseTo((3 * mr) / 1.128, 3);
+		expect(detail.spec).toEqual({ lowerSpecLimit: 20, upperSpecLimit: 35 });
+		expect(detail.capability?.cpk.value).toBeGreaterThan(0);
+	});
+
+	test('an engineer recomputes limits from a range with an excluded point; the new limits are versioned with their exclusions', async () => {
+		const list = await fetch(`${baseUrl()}/api/v1/charts?station=${stationName}`, { headers: { cookie: engineer } });
+		const c1 = ((await list.json()) as { charts: { id: number; characteristic: string }[] }).charts.find((c) => c.characteristic === 'C@1V');
+		const url = `${baseUrl()}/api/v1/charts/${c1?.id}/limits`;
+		const body = { fromSeq: 0, toSeq: 12, exclusions: [{ seq: 10, reason: 'Shifted part, socket contamination' }], reason: 'Exclude the contaminated run' };
+		expect((await fetch(url, json(operator, 'POST', body))).status).toBe(403);
+		const bad = await fetch(url, json(engineer, 'POST', { ...body, exclusions: [{ seq: 10, reason: '' }], reason: '' }));
+		expect(bad.status).toBe(400);
+		const res = await fetch(url, json(engineer, 'POST', body));
+		expect(res.status).toBe(201);
+		expect(((await res.json()) as { version: number }).version).toBe(2);
+		const detail = await fetch(`${baseUrl()}/api/v1/charts/${c1?.id}`, { headers: { cookie: engineer } });
+		const history = ((await detail.json()) as { limitsHistory: { version: number; exclusions: { seq: number }[] }[] }).limitsHistory;
+		expect(history.map((h) => h.version)).toEqual([2, 1]);
+		expect(history[0]?.exclusions).toEqual([{ seq: 10, reason: 'Shifted part, socket contamination' }]);
+	});
 });
+

@@ -9,6 +9,7 @@ const documented: [Area, Role[]][] = [
 	['lots.disposition', ['admin', 'engineer']],
 	['stations.manage', ['admin']],
 	['charts', ['admin', 'engineer']],
+	['charts.manage', ['admin', 'engineer']],
 	['alarms.acknowledge', ['admin', 'engineer', 'operator']],
 	['alarms.close', ['admin', 'engineer']],
 	['products.manage', ['admin', 'engineer']],

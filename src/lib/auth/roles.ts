@@ -20,6 +20,7 @@ export type Area =
 	| 'stations'
 	| 'stations.manage'
 	| 'charts'
+	| 'charts.manage'
 	| 'alarms'
 	| 'alarms.acknowledge'
 	| 'alarms.close'
@@ -40,6 +41,7 @@ export const ACCESS: Record<Area, readonly Role[]> = {
 	stations: ALL,
 	'stations.manage': ['admin'],
 	charts: ENGINEERS,
+	'charts.manage': ENGINEERS,
 	alarms: ALL,
 	'alarms.acknowledge': ALL,
 	'alarms.close': ENGINEERS,

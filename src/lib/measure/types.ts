@@ -50,7 +50,7 @@ export type SpecPlan = {
 	matching?: { setSize: number; tolerancePct: number };
 	bins?: Partial<Record<SpecTestCategory, number>>;
 	/** Control charts: baseline sizes and the rule ids enabled (see $lib/spc); the server uses them. */
-	spc?: { baselineParts?: number; referenceBaselineParts?: number; rules?: string[] };
+	spc?: { baselineParts?: number; referenceBaselineParts?: number; rules?: string[]; subgroupSize?: number; pChartParts?: number };
 };
 
 /** One failed test; value null when the quantity could not be obtained at all. */

@@ -28,3 +28,27 @@ export const AlarmChangeBody = z.discriminatedUnion('status', [
 		action: z.string({ error: 'Say what was done' }).trim().min(3, { error: 'Say what was done about it' }).max(2000)
 	})
 ]);
+
+export const ChartsQuery = z.object({
+	station: z.string().max(40).optional(),
+	product: z.string().max(40).optional(),
+	kind: z.enum(['production', 'reference']).optional()
+});
+
+export const ChartQuery = z.object({
+	view: z.enum(['imr', 'xbar-r', 'xbar-s', 'ewma', 'cusum', 'p']).default('imr'),
+	limit: z.coerce.number().int().min(2).max(100_000).default(500),
+	fromSeq: z.coerce.number().int().min(0).optional()
+});
+
+export const RecomputeLimitsBody = z
+	.object({
+		fromSeq: z.number().int().min(0),
+		toSeq: z.number().int().min(1),
+		exclusions: z
+			.array(z.object({ seq: z.number().int().min(0), reason: z.string().trim().min(3, { error: 'Give a reason for each excluded point' }).max(500) }))
+			.max(1000)
+			.default([]),
+		reason: z.string({ error: 'Say why the limits change' }).trim().min(3, { error: 'Say why the limits change' }).max(1000)
+	})
+	.refine((v) => v.toSeq - v.fromSeq >= 2, { path: ['toSeq'], error: 'Choose at least two points' });

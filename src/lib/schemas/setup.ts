@@ -29,7 +29,9 @@ export const SpecPlanSchema = z
 			.object({
 				baselineParts: z.number().int().min(2).max(10_000).optional(),
 				referenceBaselineParts: z.number().int().min(2).max(1000).optional(),
-				rules: z.array(z.enum(ALL_RULE_IDS)).max(ALL_RULE_IDS.length).optional()
+				rules: z.array(z.enum(ALL_RULE_IDS)).max(ALL_RULE_IDS.length).optional(),
+				subgroupSize: z.number().int().min(2).max(25).optional(),
+				pChartParts: z.number().int().min(10).max(10_000).optional()
 			})
 			.optional()
 	})
