@@ -265,8 +265,9 @@ export function ensureBuild(/** @type {string} */ outDir) {
 	const stamp = path.join(outDir, '.built');
 	if (fs.existsSync(path.join(outDir, 'index.js')) && mtime(stamp) > newestSource()) return;
 	say(`building the app into ${path.relative(root, outDir) || '.'}…`);
+	const own = path.resolve(outDir) !== path.join(root, 'build');
 	run(path.join(root, 'node_modules', '.bin', 'vite'), ['build'], {
-		env: { ...process.env, BIASLINE_BUILD_DIR: outDir }
+		env: { ...process.env, BIASLINE_BUILD_DIR: outDir, ...(own ? { BIASLINE_KIT_DIR: path.join(path.dirname(outDir), 'svelte-kit') } : {}) }
 	});
 	fs.writeFileSync(stamp, new Date().toISOString());
 }

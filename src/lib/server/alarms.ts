@@ -2,6 +2,7 @@
 import { QueryTypes } from 'sequelize';
 import { audit, type Actor } from './audit';
 import { db } from './db';
+import { publishNow } from './events';
 
 export type AlarmStatus = 'open' | 'acknowledged' | 'closed';
 
@@ -132,6 +133,7 @@ export async function acknowledgeAlarm(actor: Actor, id: number): Promise<AlarmC
 	if (!alarm) return { ok: false, status: 404, message: 'No such alarm' };
 	if (rows.length === 0) return { ok: false, status: 409, message: `The alarm is ${alarm.status}, not open` };
 	await audit(actor, 'alarm', id, 'acknowledge', { status: 'open' }, { status: 'acknowledged' });
+	await announce(alarm);
 	return { ok: true, alarm };
 }
 
@@ -147,5 +149,47 @@ export async function closeAlarm(actor: Actor, id: number, cause: string, action
 	await audit(actor, 'alarm', id, 'close', { status: before.status }, { status: 'closed', cause, action });
 	const alarm = await getAlarm(id);
 	if (!alarm) return { ok: false, status: 404, message: 'No such alarm' };
+	await announce(alarm);
 	return { ok: true, alarm };
+}
+
+/** An `alarm` event on the live stream for a changed alarm. */
+async function announce(a: AlarmRecord): Promise<void> {
+	const rows = await db().query<{ station_id: string; lot_id: string | null }>(
+		'SELECT c.station_id, a.lot_id FROM alarms a JOIN charts c ON c.id = a.chart_id WHERE a.id = :id',
+		{ replacements: { id: a.id }, type: QueryTypes.SELECT }
+	);
+	const row = rows[0];
+	await publishNow([
+		{
+			type: 'alarm',
+			stationId: row ? Number(row.station_id) : null,
+			lotId: row?.lot_id ? Number(row.lot_id) : null,
+			payload: { id: a.id, rule: a.rule, chart: a.chart.characteristic, kind: a.chart.kind, station: a.station, lot: a.lot, status: a.status, suspect: a.suspect, description: a.description }
+		}
+	]);
+}
+
+/**
+ * Alarms for the alarms screen: `active` means still needing a person (open or acknowledged),
+ * `all` means every status; newest first, at most `limit` (default 200).
+ */
+export async function listAlarmsForScreen(f: Omit<AlarmFilter, 'status'> & { status: AlarmStatus | 'active' | 'all' }): Promise<AlarmRecord[]> {
+	const { status, ...rest } = f;
+	if (status === 'all') return listAlarms(rest);
+	if (status !== 'active') return listAlarms({ ...rest, status });
+	const [open, acknowledged] = await Promise.all([listAlarms({ ...rest, status: 'open' }), listAlarms({ ...rest, status: 'acknowledged' })]);
+	return [...open, ...acknowledged].sort((a, b) => b.at.localeCompare(a.at) || b.id - a.id).slice(0, rest.limit ?? 200);
+}
+
+/** Stations, products and lots that have alarms, for the screen's filters. */
+export async function alarmFilterOptions(): Promise<{ stations: string[]; products: string[]; lots: string[] }> {
+	const rows = await db().query<{ station: string; code: string; lot: string | null }>(
+		`SELECT DISTINCT s.name AS station, p.code, l.number AS lot
+		 FROM alarms a JOIN charts c ON c.id = a.chart_id JOIN stations s ON s.id = c.station_id JOIN products p ON p.id = c.product_id
+		 LEFT JOIN lots l ON l.id = a.lot_id`,
+		{ type: QueryTypes.SELECT }
+	);
+	const sorted = (xs: (string | null)[]) => [...new Set(xs.filter((x): x is string => x !== null))].sort();
+	return { stations: sorted(rows.map((r) => r.station)), products: sorted(rows.map((r) => r.code)), lots: sorted(rows.map((r) => r.lot)) };
 }

@@ -68,7 +68,6 @@ export async function signIn(email: string, password: string, clientAddress: str
 	if (account.blocked || address.blocked) {
 		return { ok: false, reason: 'rate-limited', retryAfterS: Math.max(account.retryAfterS, address.retryAfterS) };
 	}
-	await recordHit(addressKey, SIGN_IN_LIMITS.windowS);
 	const rows = await db().query<UserRow>(
 		'SELECT id, email, name, role, password_hash, active FROM users WHERE lower(email) = lower(:email)',
 		{ replacements: { email: email.trim() }, type: QueryTypes.SELECT }
@@ -77,7 +76,8 @@ export async function signIn(email: string, password: string, clientAddress: str
 	const good = row ? await verifyPassword(row.password_hash, password) : await verifyPassword(await dummyHash(), password).then(() => false);
 	const user = row && good && row.active ? toSessionUser(row) : null;
 	if (!user) {
-		await recordHit(accountKey, SIGN_IN_LIMITS.windowS);
+		// Failures count, per account and per address (many people may share one address).
+		await Promise.all([recordHit(accountKey, SIGN_IN_LIMITS.windowS), recordHit(addressKey, SIGN_IN_LIMITS.windowS)]);
 		return { ok: false, reason: 'invalid' };
 	}
 	await resetLimit(accountKey);

@@ -15,6 +15,7 @@ import {
 	pChart,
 	xbarRLimits,
 	xbarSLimits,
+	type CapabilityReport,
 	type ChartRuleLimits
 } from '$lib/spc';
 import { audit, type Actor } from './audit';
@@ -125,7 +126,9 @@ export type ChartDetail = {
 	spec: { lowerSpecLimit?: number; upperSpecLimit?: number };
 	points: ChartPoint[];
 	data: ViewData | { view: ChartView; error: string };
-	capability: ReturnType<typeof capability> | null;
+	/** Null when the characteristic has no spec limits or too few points (see capabilityNote). */
+	capability: CapabilityReport | null;
+	capabilityNote: string | null;
 };
 
 /** A chart's newest `limit` points (or those from `fromSeq`) in the view asked for. */
@@ -177,7 +180,8 @@ export async function chartDetail(id: number, view: ChartView, opts: { limit: nu
 		spec,
 		points,
 		data,
-		capability: cap
+		capability: cap?.ok ? cap.value : null,
+		capabilityNote: !hasSpec ? 'No spec limits for this characteristic' : cap && !cap.ok ? cap.error.message : cap ? null : 'Too few points'
 	};
 }
 

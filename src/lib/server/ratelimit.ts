@@ -35,8 +35,8 @@ export async function resetLimit(key: string): Promise<void> {
 }
 
 /**
- * Sign-in limits, common practice: at most 5 failed attempts per account and 30 attempts per
- * client address in 15 minutes.
+ * Sign-in limits, common practice: at most 5 failed attempts per account and 30 failed attempts
+ * per client address in 15 minutes.
  */
 export const SIGN_IN_LIMITS = { perAccount: 5, perAddress: 30, windowS: 15 * 60 } as const;
 

@@ -1,7 +1,7 @@
 // Station ingest: a batch of tested units judged and stored in one transaction, with
 // idempotency keys so a retried post is answered from the stored answer and stored once.
 import { createHash } from 'node:crypto';
-import { QueryTypes } from 'sequelize';
+import { QueryTypes, type Transaction } from 'sequelize';
 import { evaluateUnit } from '$lib/measure';
 import type { SpecFailure, SpecPlan } from '$lib/measure/types';
 import type { ResultsBodyInput } from '$lib/schemas/station-api';
@@ -9,6 +9,7 @@ import type { StationPrincipal } from './auth';
 import { calibrationInForceAt } from './calibrations';
 import { db } from './db';
 import { getLot } from './lots';
+import { publish, type NewEvent } from './events';
 import { chartBatch, type OpenedAlarm, type SpcUnit } from './spc';
 import { getStation } from './stations';
 
@@ -188,6 +189,17 @@ export async function ingestResults(
 				lot.productId,
 				charted.map((c, i) => ({ ...c, id: Number(records[i]?.id) }))
 			);
+			const counted = records.filter((r) => r.kind === 'production');
+			if (counted.length) {
+				const perBin = new Map<number, number>();
+				for (const r of counted) perBin.set(Number(r.bin), (perBin.get(Number(r.bin)) ?? 0) + 1);
+				await db().query(
+					`INSERT INTO lot_bin_counts (lot_id, bin, n) SELECT :lotId, bin, n FROM jsonb_to_recordset(CAST(:rows AS jsonb)) AS x(bin smallint, n bigint)
+					 ON CONFLICT (lot_id, bin) DO UPDATE SET n = lot_bin_counts.n + EXCLUDED.n`,
+					{ replacements: { lotId: lot.id, rows: JSON.stringify([...perBin].map(([bin, n]) => ({ bin, n }))) }, transaction: t }
+				);
+			}
+			await publish(t, await batchEvents(t, station.id, station.name, lot.id, lot.number, records, alarms));
 			await db().query('UPDATE stations SET last_seen_at = :now, current_lot_id = :lotId WHERE id = :id', {
 				replacements: { now, lotId: lot.id, id: station.id },
 				transaction: t
@@ -204,6 +216,64 @@ export async function ingestResults(
 	return { ok: true, status: 201, replayed: false, body: response, alarms };
 }
 
+
+/** Parts a station's rolling yield looks back over (our choice: a few minutes of a busy station). */
+export const ROLLING_YIELD_PARTS = 200;
+
+/** The live events of an accepted batch: each part, the changed yield figures, new alarms. */
+async function batchEvents(
+	t: Transaction,
+	stationId: number,
+	stationName: string,
+	lotId: number,
+	lotNumber: string,
+	records: Record<string, unknown>[],
+	alarms: OpenedAlarm[]
+): Promise<NewEvent[]> {
+	const events: NewEvent[] = records.map((r) => ({
+		type: 'unit',
+		stationId,
+		lotId,
+		payload: { serial: r.serial, lot: lotNumber, station: stationName, bin: r.bin, pass: r.pass, testedAt: r.tested_at, kind: r.kind }
+	}));
+	if (records.some((r) => r.kind === 'production')) {
+		const [lotRow] = await db().query<{ tested: string; passed: string }>(
+			'SELECT coalesce(sum(n), 0) AS tested, coalesce(sum(n) FILTER (WHERE bin = 1), 0) AS passed FROM lot_bin_counts WHERE lot_id = :lotId',
+			{ replacements: { lotId }, type: QueryTypes.SELECT, transaction: t }
+		);
+		const [stRow] = await db().query<{ tested: string; passed: string }>(
+			`SELECT count(*) AS tested, count(*) FILTER (WHERE pass) AS passed FROM
+			   (SELECT pass FROM units WHERE station_id = :stationId AND kind = 'production' ORDER BY id DESC LIMIT :n) x`,
+			{ replacements: { stationId, n: ROLLING_YIELD_PARTS }, type: QueryTypes.SELECT, transaction: t }
+		);
+		const lotTested = Number(lotRow?.tested ?? 0);
+		const lotPassed = Number(lotRow?.passed ?? 0);
+		const window = Number(stRow?.tested ?? 0);
+		events.push({
+			type: 'yield',
+			stationId,
+			lotId,
+			payload: {
+				station: stationName,
+				lot: lotNumber,
+				lotTested,
+				lotPassed,
+				lotYieldPct: lotTested ? (100 * lotPassed) / lotTested : null,
+				stationYieldPct: window ? (100 * Number(stRow?.passed ?? 0)) / window : null,
+				stationWindow: window
+			}
+		});
+	}
+	for (const a of alarms) {
+		events.push({
+			type: 'alarm',
+			stationId,
+			lotId,
+			payload: { id: a.alarmId, rule: a.rule, chart: a.characteristic, kind: a.kind, station: stationName, lot: lotNumber, status: 'open', suspect: a.suspect, description: a.description }
+		});
+	}
+	return events;
+}
 
 /** Forgets idempotency keys older than the retention (stations retry within minutes, not days). */
 export async function pruneIdempotencyKeys(olderThanHours = 72): Promise<void> {

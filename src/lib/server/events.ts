@@ -1,0 +1,65 @@
+// The event log: written inside the transaction that caused the events, announced with
+// pg_notify (PostgreSQL delivers it only when that transaction commits), read by every app
+// instance's listener and by reconnecting clients (Last-Event-ID).
+import { QueryTypes, type Transaction } from 'sequelize';
+import { db } from './db';
+
+export const EVENT_CHANNEL = 'biasline_events';
+/** How long events stay replayable (our choice: a shift and a half). */
+export const EVENT_RETENTION_HOURS = 12;
+
+export type EventType = 'unit' | 'yield' | 'alarm';
+export type NewEvent = { type: EventType; stationId: number | null; lotId: number | null; payload: Record<string, unknown> };
+export type StoredEvent = NewEvent & { id: number; at: string };
+
+/** Appends events and announces the newest id to every listener once the transaction commits. */
+export async function publish(t: Transaction, events: NewEvent[]): Promise<void> {
+	if (events.length === 0) return;
+	const rows = await db().query<{ id: string }>(
+		`INSERT INTO events (type, station_id, lot_id, payload)
+		 SELECT type, station_id, lot_id, payload FROM jsonb_to_recordset(CAST(:rows AS jsonb)) AS x(type text, station_id bigint, lot_id bigint, payload jsonb)
+		 RETURNING id`,
+		{
+			replacements: { rows: JSON.stringify(events.map((e) => ({ type: e.type, station_id: e.stationId, lot_id: e.lotId, payload: e.payload }))) },
+			type: QueryTypes.SELECT,
+			transaction: t
+		}
+	);
+	const maxId = rows.reduce((m, r) => Math.max(m, Number(r.id)), 0);
+	await db().query('SELECT pg_notify(:channel, :id)', { replacements: { channel: EVENT_CHANNEL, id: String(maxId) }, transaction: t });
+}
+
+/** Publishes outside an existing transaction (alarm changes made by people). */
+export async function publishNow(events: NewEvent[]): Promise<void> {
+	await db().transaction((t) => publish(t, events));
+}
+
+type Row = { id: string; at: Date; type: EventType; station_id: string | null; lot_id: string | null; payload: Record<string, unknown> };
+
+/** Events after `afterId`, oldest first, optionally of one station or lot. */
+export async function eventsSince(afterId: number, f: { stationId?: number; lotId?: number; limit?: number } = {}): Promise<StoredEvent[]> {
+	const where = ['id > :afterId'];
+	if (f.stationId !== undefined) where.push('station_id = :stationId');
+	if (f.lotId !== undefined) where.push('lot_id = :lotId');
+	const rows = await db().query<Row>(`SELECT * FROM events WHERE ${where.join(' AND ')} ORDER BY id LIMIT :limit`, {
+		replacements: { afterId, stationId: f.stationId, lotId: f.lotId, limit: f.limit ?? 5000 },
+		type: QueryTypes.SELECT
+	});
+	return rows.map((r) => ({
+		id: Number(r.id),
+		at: r.at.toISOString(),
+		type: r.type,
+		stationId: r.station_id === null ? null : Number(r.station_id),
+		lotId: r.lot_id === null ? null : Number(r.lot_id),
+		payload: r.payload
+	}));
+}
+
+export async function latestEventId(): Promise<number> {
+	const rows = await db().query<{ id: string | null }>('SELECT max(id) AS id FROM events', { type: QueryTypes.SELECT });
+	return Number(rows[0]?.id ?? 0);
+}
+
+export async function pruneEvents(): Promise<void> {
+	await db().query('DELETE FROM events WHERE at < now() - make_interval(hours => :h)', { replacements: { h: EVENT_RETENTION_HOURS } });
+}

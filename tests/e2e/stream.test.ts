@@ -1,0 +1,136 @@
+import { randomUUID } from 'node:crypto';
+import { beforeAll, describe, expect, test } from 'vitest';
+import { baseUrl, cookieFor } from './helpers';
+import { abruptPartF, pF, referenceReadings, resonanceHz, type TestFixture } from './physics';
+
+// The live stream of the contract: server-sent events (WHATWG HTML, "Server-sent events":
+// fields `id`, `event`, `data`, blank line ends an event; `Last-Event-ID` on reconnect).
+
+const FIXTURE: TestFixture = { inductanceH: 100e-6, strayF: 3 * pF, blockingF: 100e-9, arrangement: 'single' };
+const tag = randomUUID().slice(0, 8);
+const lotNumber = `LT-L-${tag}`;
+let cookie = '';
+let token = '';
+let n = 0;
+
+type Sse = { id: number; event: string; data: Record<string, unknown> };
+
+/** Opens the stream and collects events until `done` says stop (or the time runs out). */
+async function collect(path: string, opts: { lastEventId?: number; until: (events: Sse[]) => boolean; timeoutMs?: number; onOpen?: () => Promise<void> }) {
+	const controller = new AbortController();
+	const timer = setTimeout(() => controller.abort(), opts.timeoutMs ?? 10_000);
+	const res = await fetch(baseUrl() + path, {
+		headers: { cookie, accept: 'text/event-stream', ...(opts.lastEventId !== undefined ? { 'last-event-id': String(opts.lastEventId) } : {}) },
+		signal: controller.signal
+	});
+	expect(res.status).toBe(200);
+	expect(res.headers.get('content-type')).toContain('text/event-stream');
+	const events: Sse[] = [];
+	const reader = res.body?.getReader();
+	if (!reader) throw new Error('no body');
+	const decoder = new TextDecoder();
+	let text = '';
+	let opened = false;
+	try {
+		while (!opts.until(events)) {
+			const { value, done } = await reader.read();
+			if (done) break;
+			text += decoder.decode(value, { stream: true });
+			let end;
+			while ((end = text.indexOf('\n\n')) >= 0) {
+				const block = text.slice(0, end);
+				text = text.slice(end + 2);
+				const fields = Object.fromEntries(block.split('\n').filter((l) => !l.startsWith(':') && l.includes(': ')).map((l) => [l.slice(0, l.indexOf(': ')), l.slice(l.indexOf(': ') + 2)]));
+				if (fields.event && fields.id) events.push({ id: Number(fields.id), event: fields.event, data: JSON.parse(fields.data ?? '{}') });
+			}
+			if (!opened && opts.onOpen) {
+				opened = true;
+				await opts.onOpen();
+			}
+		}
+	} catch (e) {
+		if (!controller.signal.aborted) throw e;
+	} finally {
+		clearTimeout(timer);
+		controller.abort();
+	}
+	return events;
+}
+
+async function postBatch(count: number) {
+	const units = Array.from({ length: count }, () => {
+		n++;
+		return { serial: `${lotNumber}-${n}`, testedAt: new Date().toISOString(), points: [1, 4].map((v) => ({ biasV: v, resonanceHz: resonanceHz(FIXTURE, abruptPartF(v)) })) };
+	});
+	const res = await fetch(`${baseUrl()}/api/v1/results`, {
+		method: 'POST',
+		headers: { 'content-type': 'application/json', authorization: `Bearer ${token}`, 'idempotency-key': randomUUID() },
+		body: JSON.stringify({ lot: lotNumber, units })
+	});
+	expect(res.status).toBe(201);
+	return units.map((u) => u.serial);
+}
+
+beforeAll(async () => {
+	cookie = await cookieFor('engineer');
+	const admin = await cookieFor('admin');
+	const post = (path: string, body: unknown, c: string) => fetch(baseUrl() + path, { method: 'POST', headers: { cookie: c, 'content-type': 'application/json' }, body: JSON.stringify(body) });
+	const code = `STR-${tag}`;
+	expect((await post('/api/v1/products', { code, name: 'Stream test', plan: { points: [{ biasV: 1, minF: 20 * pF, maxF: 35 * pF }, { biasV: 4 }] } }, cookie)).status).toBe(201);
+	const st = await post('/api/v1/stations', { name: `L-${tag}`, fixture: FIXTURE }, admin);
+	token = ((await st.json()) as { token: string }).token;
+	expect((await post('/api/v1/lots', { number: lotNumber, productCode: code, quantity: 100 }, cookie)).status).toBe(201);
+	const cal = await fetch(`${baseUrl()}/api/v1/calibrations`, {
+		method: 'POST',
+		headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
+		body: JSON.stringify({ references: referenceReadings(FIXTURE) })
+	});
+	expect(cal.status).toBe(201);
+});
+
+describe('live stream', () => {
+	test('signed out, the stream is refused', async () => {
+		const res = await fetch(`${baseUrl()}/api/v1/stream`);
+		expect(res.status).toBe(401);
+	});
+
+	test('a posted batch arrives as one unit event per part and a yield event, each with an id', async () => {
+		let serials: string[] = [];
+		const events = await collect(`/api/v1/stream?lot=${lotNumber}`, {
+			onOpen: async () => {
+				serials = await postBatch(3);
+			},
+			until: (es) => es.filter((e) => e.event === 'unit').length >= 3 && es.some((e) => e.event === 'yield')
+		});
+		expect(events.filter((e) => e.event === 'unit').map((e) => e.data.serial)).toEqual(serials);
+		const yieldEvent = events.find((e) => e.event === 'yield');
+		expect(yieldEvent?.data).toMatchObject({ lot: lotNumber, lotTested: 3, lotPassed: 3, lotYieldPct: 100 });
+		const ids = events.map((e) => e.id);
+		expect([...ids].sort((a, b) => a - b)).toEqual(ids);
+	});
+
+	test('a client reconnecting with Last-Event-ID receives every event it missed, in order, once', async () => {
+		const seen = await collect(`/api/v1/stream?lot=${lotNumber}`, {
+			onOpen: async () => {
+				await postBatch(2);
+			},
+			until: (es) => es.filter((e) => e.event === 'unit').length >= 1
+		});
+		const lastSeen = seen[0]?.id ?? 0;
+		// Disconnected now; more parts arrive meanwhile.
+		const missedSerials = await postBatch(4);
+		const replay = await collect(`/api/v1/stream?lot=${lotNumber}`, {
+			lastEventId: lastSeen,
+			until: (es) => es.filter((e) => e.event === 'unit').length >= 5
+		});
+		const units = replay.filter((e) => e.event === 'unit').map((e) => e.data.serial);
+		expect(units.slice(-4)).toEqual(missedSerials);
+		expect(new Set(replay.map((e) => e.id)).size).toBe(replay.length);
+		expect(replay.every((e) => e.id > lastSeen)).toBe(true);
+	});
+
+	test('an unknown lot in ?lot= is a 404', async () => {
+		const unknown = await fetch(`${baseUrl()}/api/v1/stream?lot=NO-SUCH-LOT`, { headers: { cookie } });
+		expect(unknown.status).toBe(404);
+	});
+});
