@@ -1,8 +1,8 @@
 import { requireArea } from '$lib/server/auth';
-import { listStations } from '$lib/server/catalog';
+import { floorView } from '$lib/server/floor';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	requireArea(event, 'floor');
-	return { stations: await listStations() };
+	return { floor: await floorView() };
 };
