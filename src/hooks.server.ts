@@ -5,11 +5,13 @@ import { randomUUID } from 'node:crypto';
 import { SESSION_COOKIE, userFromToken } from '$lib/server/auth';
 import { problem } from '$lib/server/problem';
 import { stationFromToken } from '$lib/server/stations';
+import { startMailSender } from '$lib/server/mail/sender';
 import { prepareDatabase } from '$lib/server/setup';
 
 export const init: ServerInit = async () => {
 	if (building) return;
 	await prepareDatabase();
+	startMailSender();
 };
 
 const authenticate: Handle = async ({ event, resolve }) => {

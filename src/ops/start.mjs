@@ -3,7 +3,7 @@
 import { spawn } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
-import { createDatabase, dataDir, ensureBuild, ensureCluster, ensureDependencies, root, say, sessionKey, waitForHttp } from './lib.mjs';
+import { createDatabase, dataDir, ensureBuild, ensureCluster, ensureDependencies, freePort, root, say, sessionKey, waitForHttp } from './lib.mjs';
 
 const DEMO_ADMIN = { email: 'admin@corvane.example', password: 'biasline-admin' };
 
@@ -26,6 +26,20 @@ if (!databaseUrl) {
 const buildDir = path.join(root, 'build');
 ensureBuild(buildDir);
 
+// The local test mail server keeps alarm e-mail for /admin/outbox, unless the site names its own.
+/** @type {null | { port: number, stop: () => Promise<void> }} */
+let smtp = null;
+/** @type {Record<string, string>} */
+const mailEnv = {};
+if (!process.env.BIASLINE_SMTP_URL) {
+	const { startFakeSmtp } = await import('./smtp.mjs'); // after ensureDependencies: it needs smtp-server
+	const outbox = process.env.BIASLINE_OUTBOX_DIR || path.join(dataDir(), 'outbox');
+	smtp = await startFakeSmtp({ dir: outbox, port: Number(await freePort()) });
+	mailEnv.BIASLINE_SMTP_URL = `smtp://127.0.0.1:${smtp.port}`;
+	mailEnv.BIASLINE_OUTBOX_DIR = outbox;
+	say(`alarm e-mail goes to the local test mail server (read it on /admin/outbox; set BIASLINE_SMTP_URL for real mail)`);
+}
+
 const env = {
 	...process.env,
 	DATABASE_URL: databaseUrl,
@@ -40,7 +54,8 @@ const env = {
 	ORIGIN: process.env.ORIGIN || `http://${host === '0.0.0.0' ? '127.0.0.1' : host}:${port}`,
 	// Open event streams would otherwise hold a shutdown for 30 s.
 	SHUTDOWN_TIMEOUT: process.env.SHUTDOWN_TIMEOUT || '2',
-	BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT || '2M'
+	BODY_SIZE_LIMIT: process.env.BODY_SIZE_LIMIT || '2M',
+	...mailEnv
 };
 
 const app = spawn(process.execPath, [path.join(buildDir, 'index.js')], { env, stdio: 'inherit', cwd: root });
@@ -65,6 +80,7 @@ async function shutdown(/** @type {string} */ why) {
 	}
 	if (app.exitCode === null) app.kill('SIGTERM');
 	await new Promise((r) => (app.exitCode !== null ? r(null) : app.once('exit', r)));
+	if (smtp) await smtp.stop();
 	if (cluster?.started) {
 		say('stopping PostgreSQL…');
 		cluster.stop();

@@ -47,6 +47,8 @@ const baseEnv = {
 
 /** @type {import('node:child_process').ChildProcess | null} */
 let server = null;
+/** @type {null | { port: number, stop: () => Promise<void> }} */
+let smtp = null;
 let failed = false;
 
 /** @param {string[]} args @param {NodeJS.ProcessEnv} env */
@@ -62,6 +64,7 @@ async function cleanup() {
 		server.kill('SIGTERM');
 		await new Promise((r) => server?.once('exit', r));
 	}
+	if (smtp) await smtp.stop();
 	await dropDatabase(adminUrl, dbUnit).catch(() => {});
 	await dropDatabase(adminUrl, dbE2e).catch(() => {});
 	if (cluster.started) cluster.stop();
@@ -80,6 +83,10 @@ try {
 	ensureBuild(buildDir);
 	const port = await freePort();
 	const url = `http://127.0.0.1:${port}`;
+	// The built server mails through its own local test mail server, as under npm start.
+	const e2eDir = path.join(process.env.BIASLINE_DATA_DIR, 'e2e');
+	const { startFakeSmtp } = await import('./smtp.mjs');
+	smtp = await startFakeSmtp({ dir: path.join(e2eDir, 'outbox'), port: Number(await freePort()) });
 	const logFile = path.join(process.env.BIASLINE_DATA_DIR, 'e2e-server.log');
 	const log = fs.openSync(logFile, 'w');
 	server = spawn(process.execPath, [path.join(buildDir, 'index.js')], {
@@ -89,7 +96,9 @@ try {
 			...baseEnv,
 			DATABASE_URL: cluster.url(dbE2e),
 			BIASLINE_DEMO: '1',
-			BIASLINE_DATA_DIR: path.join(process.env.BIASLINE_DATA_DIR, 'e2e'),
+			BIASLINE_DATA_DIR: e2eDir,
+			BIASLINE_SMTP_URL: `smtp://127.0.0.1:${smtp.port}`,
+			BIASLINE_OUTBOX_DIR: path.join(e2eDir, 'outbox'),
 			HOST: '127.0.0.1',
 			PORT: String(port),
 			ORIGIN: url,

@@ -10,7 +10,16 @@ const Settings = z.object({
 	BIASLINE_ADMIN_EMAIL: z.email().default('admin@corvane.example'),
 	BIASLINE_ADMIN_PASSWORD: z.string().min(8).default('biasline-admin'),
 	/** Hours a sign-in lasts. */
-	BIASLINE_SESSION_HOURS: z.coerce.number().positive().max(24 * 30).default(12)
+	BIASLINE_SESSION_HOURS: z.coerce.number().positive().max(24 * 30).default(12),
+	/** Where alarm e-mail goes (`smtp://` or `smtps://`, user and password in the URL); unset: no mail is sent. */
+	BIASLINE_SMTP_URL: z.preprocess(
+		(v) => (v === '' ? undefined : v),
+		z.string().regex(/^smtps?:\/\/[^/\s]+/, 'BIASLINE_SMTP_URL must look like smtp://host:port').optional()
+	),
+	/** The From of alarm e-mail (an RFC 5322 mailbox). */
+	BIASLINE_MAIL_FROM: z.string().min(3).default('Biasline <biasline@localhost>'),
+	/** The folder the local test mail server keeps messages in (read by /admin/outbox). */
+	BIASLINE_OUTBOX_DIR: z.preprocess((v) => (v === '' ? undefined : v), z.string().optional())
 });
 
 export type Settings = z.infer<typeof Settings>;
