@@ -60,7 +60,16 @@ beforeAll(async () => {
 		points: [{ biasV: 1, minF: 20 * pF, maxF: 35 * pF }, { biasV: 4, minF: 12 * pF, maxF: 22 * pF }],
 		spc: { baselineParts: 10, rules: ['WE1', 'WE4'] }
 	};
-	expect((await fetch(`${baseUrl()}/api/v1/products`, json(engineer, 'POST', { code, name: 'SPC test part', plan }))).status).toBe(201);
+	const product = await fetch(`${baseUrl()}/api/v1/products`, json(engineer, 'POST', { code, name: 'SPC test part', plan }));
+	expect(product.status).toBe(201);
+	// The engineer follows the product, so its alarms reach them by e-mail.
+	const productId = ((await product.json()) as { id: number }).id;
+	const subscribe = await fetch(`${baseUrl()}/account?/subscribe`, {
+		method: 'POST',
+		headers: { cookie: engineer, origin: baseUrl(), 'content-type': 'application/x-www-form-urlencoded', accept: 'application/json' },
+		body: new URLSearchParams({ scope: 'product', product: String(productId) })
+	});
+	expect(subscribe.status).toBe(200);
 	const st = await fetch(`${baseUrl()}/api/v1/stations`, json(admin, 'POST', { name: stationName, fixture: FIXTURE }));
 	token = ((await st.json()) as { token: string }).token;
 	expect((await fetch(`${baseUrl()}/api/v1/lots`, json(operator, 'POST', { number: lotNumber, productCode: code, quantity: 100 }))).status).toBe(201);
@@ -160,5 +169,11 @@ describe('control charts on every post', () => {
 		expect(history.map((h) => h.version)).toEqual([2, 1]);
 		expect(history[0]?.exclusions).toEqual([{ seq: 10, reason: 'Shifted part, socket contamination' }]);
 	});
-});
 
+	test('the alarm e-mail reaches the local SMTP server and shows in the admin outbox', async () => {
+		// Subject format of a single-alarm message: "[Biasline] <rule> on <station> · <chart> · <product>".
+		const outbox = async () => (await fetch(`${baseUrl()}/admin/outbox`, { headers: { cookie: admin } })).text();
+		await expect.poll(outbox, { timeout: 30_000, interval: 1000 }).toContain(`WE1 on ${stationName}`);
+		expect(await outbox()).toContain('noor.haddad@corvane.example');
+	});
+});

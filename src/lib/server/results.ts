@@ -10,6 +10,7 @@ import { calibrationInForceAt } from './calibrations';
 import { db } from './db';
 import { getLot } from './lots';
 import { publish, type NewEvent } from './events';
+import { queueAlarmMail } from './mail/notify';
 import { chartBatch, type OpenedAlarm, type SpcUnit } from './spc';
 import { getStation } from './stations';
 
@@ -72,7 +73,8 @@ export async function ingestResults(
 	key: string,
 	hash: string,
 	body: ResultsBodyInput,
-	now: Date
+	now: Date,
+	origin: string
 ): Promise<IngestOutcome> {
 	const earlier = await storedKey(principal.id, key);
 	if (earlier) return replayOf(earlier, hash);
@@ -200,6 +202,28 @@ export async function ingestResults(
 				);
 			}
 			await publish(t, await batchEvents(t, station.id, station.name, lot.id, lot.number, records, alarms));
+			// Queued in this transaction: the mail exists exactly when the alarm does.
+			for (const a of alarms) {
+				await queueAlarmMail(
+					{
+						alarmId: a.alarmId,
+						rule: a.rule,
+						ruleDescription: a.description,
+						chart: `${a.characteristic}${a.kind === 'reference' ? ' (reference part)' : ''}`,
+						stationName: station.name,
+						lineId: station.lineId,
+						lineName: station.line,
+						productId: lot.productId,
+						productCode: lot.productCode,
+						lotNumber: lot.number,
+						suspect: a.suspect,
+						reasoning: a.reasoning,
+						openedAt: now.toISOString(),
+						url: `${origin}/alarms?status=open&station=${encodeURIComponent(station.name)}`
+					},
+					{ transaction: t, now }
+				);
+			}
 			await db().query('UPDATE stations SET last_seen_at = :now, current_lot_id = :lotId WHERE id = :id', {
 				replacements: { now, lotId: lot.id, id: station.id },
 				transaction: t

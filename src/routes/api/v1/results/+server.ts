@@ -13,7 +13,7 @@ const MAX_BODY_BYTES = 1_048_576;
 const tooLarge = () =>
 	problem(413, `A results body may be at most ${MAX_BODY_BYTES} bytes; send fewer units per request`, { headers: { connection: 'close' } });
 
-export const POST: RequestHandler = async ({ request, locals }) => {
+export const POST: RequestHandler = async ({ request, locals, url }) => {
 	const station = requireStation(locals);
 	const wait = await stationOverLimit(station.id);
 	if (wait !== null) return problem(429, 'Too many requests from this station', { headers: { 'retry-after': String(wait) } });
@@ -35,7 +35,7 @@ export const POST: RequestHandler = async ({ request, locals }) => {
 	}
 	const parsed = ResultsBody.safeParse(value);
 	if (!parsed.success) return problem(400, 'Check the fields listed in errors; nothing was stored', { errors: issueList(parsed.error) });
-	const outcome = await ingestResults(station, key.data, requestHash(raw), parsed.data, new Date());
+	const outcome = await ingestResults(station, key.data, requestHash(raw), parsed.data, new Date(), url.origin);
 	if (!outcome.ok) return problem(outcome.status, outcome.detail, { kind: outcome.kind, errors: outcome.errors });
 	return json(outcome.body, { status: outcome.status, headers: outcome.replayed ? { 'idempotent-replayed': 'true' } : {} });
 };
