@@ -47,6 +47,8 @@ const baseEnv = {
 
 /** @type {import('node:child_process').ChildProcess | null} */
 let server = null;
+/** @type {import('node:child_process').ChildProcess | null} */
+let serverB = null;
 /** @type {null | { port: number, stop: () => Promise<void> }} */
 let smtp = null;
 let failed = false;
@@ -60,9 +62,11 @@ function vitestRun(args, env) {
 }
 
 async function cleanup() {
-	if (server && server.exitCode === null) {
-		server.kill('SIGTERM');
-		await new Promise((r) => server?.once('exit', r));
+	for (const p of [server, serverB]) {
+		if (p && p.exitCode === null) {
+			p.kill('SIGTERM');
+			await new Promise((r) => p.once('exit', r));
+		}
 	}
 	if (smtp) await smtp.stop();
 	await dropDatabase(adminUrl, dbUnit).catch(() => {});
@@ -87,30 +91,39 @@ try {
 	const e2eDir = path.join(process.env.BIASLINE_DATA_DIR, 'e2e');
 	const { startFakeSmtp } = await import('./smtp.mjs');
 	smtp = await startFakeSmtp({ dir: path.join(e2eDir, 'outbox'), port: Number(await freePort()) });
+	const serverEnv = {
+		...baseEnv,
+		DATABASE_URL: cluster.url(dbE2e),
+		BIASLINE_DEMO: '1',
+		BIASLINE_DATA_DIR: e2eDir,
+		BIASLINE_SMTP_URL: `smtp://127.0.0.1:${smtp.port}`,
+		BIASLINE_OUTBOX_DIR: path.join(e2eDir, 'outbox'),
+		HOST: '127.0.0.1',
+		SHUTDOWN_TIMEOUT: '1',
+		BODY_SIZE_LIMIT: '2M'
+	};
+	/** @param {number} p @param {string} name */
+	const startServer = (p, name) => {
+		const log = fs.openSync(path.join(process.env.BIASLINE_DATA_DIR ?? root, `${name}.log`), 'w');
+		return spawn(process.execPath, [path.join(buildDir, 'index.js')], {
+			cwd: root,
+			stdio: ['ignore', log, log],
+			env: { ...serverEnv, PORT: String(p), ORIGIN: `http://127.0.0.1:${p}` }
+		});
+	};
 	const logFile = path.join(process.env.BIASLINE_DATA_DIR, 'e2e-server.log');
-	const log = fs.openSync(logFile, 'w');
-	server = spawn(process.execPath, [path.join(buildDir, 'index.js')], {
-		cwd: root,
-		stdio: ['ignore', log, log],
-		env: {
-			...baseEnv,
-			DATABASE_URL: cluster.url(dbE2e),
-			BIASLINE_DEMO: '1',
-			BIASLINE_DATA_DIR: e2eDir,
-			BIASLINE_SMTP_URL: `smtp://127.0.0.1:${smtp.port}`,
-			BIASLINE_OUTBOX_DIR: path.join(e2eDir, 'outbox'),
-			HOST: '127.0.0.1',
-			PORT: String(port),
-			ORIGIN: url,
-			SHUTDOWN_TIMEOUT: '1',
-			BODY_SIZE_LIMIT: '2M'
-		}
-	});
+	server = startServer(port, 'e2e-server');
 	await waitForHttp(`${url}/login`);
+	// A second instance on the same database: live updates must cross instances.
+	const portB = await freePort();
+	const urlB = `http://127.0.0.1:${portB}`;
+	serverB = startServer(portB, 'e2e-server-b');
+	await waitForHttp(`${urlB}/login`);
 	say(`browser and HTTP tests against ${url} (server log: ${path.relative(root, logFile)})…`);
 	const code2 = await vitestRun(['--project', 'e2e'], {
 		...baseEnv,
 		BIASLINE_E2E_URL: url,
+		BIASLINE_E2E_URL_B: urlB,
 		BIASLINE_E2E_ADMIN_EMAIL: 'admin@corvane.example',
 		BIASLINE_E2E_ADMIN_PASSWORD: 'biasline-admin'
 	});

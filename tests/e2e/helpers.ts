@@ -10,6 +10,13 @@ export function baseUrl(): string {
 	return url;
 }
 
+/** A second app instance on the same database (started by src/ops/test.mjs). */
+export function baseUrlB(): string {
+	const url = process.env.BIASLINE_E2E_URL_B;
+	if (!url) throw new Error('BIASLINE_E2E_URL_B is not set: run the tests with npm test');
+	return url;
+}
+
 export const PEOPLE = {
 	admin: { email: process.env.BIASLINE_E2E_ADMIN_EMAIL ?? 'admin@corvane.example', password: process.env.BIASLINE_E2E_ADMIN_PASSWORD ?? 'biasline-admin' },
 	engineer: { email: 'noor.haddad@corvane.example', password: 'biasline-demo' },

@@ -1,6 +1,6 @@
 import { randomUUID } from 'node:crypto';
 import { beforeAll, describe, expect, test } from 'vitest';
-import { baseUrl, cookieFor } from './helpers';
+import { baseUrl, baseUrlB, cookieFor } from './helpers';
 import { abruptPartF, pF, referenceReadings, resonanceHz, type TestFixture } from './physics';
 
 // The live stream of the contract: server-sent events (WHATWG HTML, "Server-sent events":
@@ -16,10 +16,10 @@ let n = 0;
 type Sse = { id: number; event: string; data: Record<string, unknown> };
 
 /** Opens the stream and collects events until `done` says stop (or the time runs out). */
-async function collect(path: string, opts: { lastEventId?: number; until: (events: Sse[]) => boolean; timeoutMs?: number; onOpen?: () => Promise<void> }) {
+async function collect(path: string, opts: { lastEventId?: number; until: (events: Sse[]) => boolean; timeoutMs?: number; onOpen?: () => Promise<void>; base?: string }) {
 	const controller = new AbortController();
 	const timer = setTimeout(() => controller.abort(), opts.timeoutMs ?? 10_000);
-	const res = await fetch(baseUrl() + path, {
+	const res = await fetch((opts.base ?? baseUrl()) + path, {
 		headers: { cookie, accept: 'text/event-stream', ...(opts.lastEventId !== undefined ? { 'last-event-id': String(opts.lastEventId) } : {}) },
 		signal: controller.signal
 	});
@@ -133,4 +133,17 @@ describe('live stream', () => {
 		const unknown = await fetch(`${baseUrl()}/api/v1/stream?lot=NO-SUCH-LOT`, { headers: { cookie } });
 		expect(unknown.status).toBe(404);
 	});
+
+	test('two instances on one database: a part posted to one appears on the other’s stream', async () => {
+		let serials: string[] = [];
+		const events = await collect(`/api/v1/stream?lot=${lotNumber}`, {
+			base: baseUrlB(),
+			onOpen: async () => {
+				serials = await postBatch(2); // posted to the first instance
+			},
+			until: (es) => es.filter((e) => e.event === 'unit').length >= 2
+		});
+		expect(events.filter((e) => e.event === 'unit').map((e) => e.data.serial)).toEqual(serials);
+	});
 });
+
