@@ -35,10 +35,14 @@ export type PlanFormValues = {
 /** Form errors keyed by input name (`points.2.minPF`), `_` for the form as a whole. */
 export type FormErrors = Record<string, string>;
 
+/** A required text field: an empty one says what to enter, a filled one gets the full check. */
+const filled = <T extends z.ZodType<string, string>>(message: string, schema: T) =>
+	z.string({ error: message }).trim().min(1, { error: message }).pipe(schema);
+
 export const PRODUCT_FAMILIES = ['abrupt', 'hyperabrupt', 'other'] as const;
 
 export const ProductHeadForm = z.object({
-	code: ProductCode,
+	code: filled('Enter a product code', ProductCode),
 	name: z.string({ error: 'Enter a name' }).trim().min(1, { error: 'Enter a name' }).max(200, { error: 'At most 200 characters' }),
 	family: z.enum(PRODUCT_FAMILIES, { error: 'Choose abrupt, hyperabrupt or other' })
 });
@@ -60,8 +64,8 @@ export type StationFormValues = {
 };
 
 export const LotOpenForm = z.object({
-	number: LotNumber,
-	productCode: ProductCode,
+	number: filled('Enter a lot number', LotNumber),
+	productCode: filled('Choose a product', ProductCode),
 	quantity: z.coerce
 		.number({ error: 'Quantity must be a whole number' })
 		.int({ error: 'Quantity must be a whole number' })

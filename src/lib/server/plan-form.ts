@@ -116,8 +116,9 @@ function planMessage(issue: { message: string; code?: string; minimum?: unknown;
 		'must be in (0, 100)': 'Between 0 and 100 %'
 	};
 	if (words[m]) return words[m];
-	if (issue.code === 'too_small') return `At least ${String(issue.minimum)}`;
-	if (issue.code === 'too_big') return `At most ${String(issue.maximum)}`;
+	// zod's own wording ("Too small: expected number to be >=2") reads badly beside an input.
+	if (issue.code === 'too_small' && m.startsWith('Too small')) return `At least ${String(issue.minimum)}`;
+	if (issue.code === 'too_big' && m.startsWith('Too big')) return `At most ${String(issue.maximum)}`;
 	return m.charAt(0).toUpperCase() + m.slice(1);
 }
 
@@ -230,7 +231,7 @@ export function stationToValues(s: { name: string; line: string | null; fixture:
 
 export function stationValuesFromForm(form: Record<string, string>): StationFormValues {
 	const blank = stationToValues(null);
-	return Object.fromEntries(Object.keys(blank).map((k) => [k, form[k] ?? (k === 'arrangement' ? '' : '')])) as StationFormValues;
+	return Object.fromEntries(Object.keys(blank).map((k) => [k, form[k] ?? ''])) as StationFormValues;
 }
 
 export type StationInput = z.infer<typeof StationBody>;
@@ -251,6 +252,7 @@ const STATION_FIELDS: Record<string, keyof StationFormValues> = {
 /** The station form → the API's StationBody (SI); `name` is taken from `fixedName` when editing. */
 export function parseStationForm(values: StationFormValues, fixedName?: string): { ok: true; station: StationInput } | { ok: false; errors: FormErrors } {
 	const r = new Reader();
+	if (fixedName === undefined && values.name.trim() === '') r.errors.name = 'Enter a station name';
 	const blockingText = values.blockingNF.trim().toLowerCase();
 	const blocking = blockingText === 'none' ? null : r.num('blockingNF', values.blockingNF, { required: true });
 	const inductance = r.num('inductanceUH', values.inductanceUH, { required: true });

@@ -1,5 +1,6 @@
 // Read models for the set-up screens (products, stations, lots), as plain objects ready to show.
 import { QueryTypes } from 'sequelize';
+import { DEFAULT_BINS, GOOD_BIN } from '$lib/measure/spec';
 import type { SpecPlan } from '$lib/measure/types';
 import { BIN_CATEGORIES, BIN_LABELS } from '$lib/schemas/plan-form';
 import { latestCalibration, calibrationHistory, type CalibrationRecord } from './calibrations';
@@ -151,7 +152,7 @@ export type LotUnitLine = { serial: string; kind: string; station: string | null
 
 export type LotPage = {
 	summary: NonNullable<Awaited<ReturnType<typeof lotSummary>>>;
-	bins: { bin: number; count: number; pct: number }[];
+	bins: { bin: number; label: string; count: number; pct: number }[];
 	biasV: number[];
 	total: number;
 	units: LotUnitLine[];
@@ -175,8 +176,13 @@ export async function lotPage(number: string, limit = 100): Promise<LotPage | nu
 			return c === undefined || c === null ? null : c * 1e12;
 		})
 	}));
+	// Bin names from the plan in force (a bin may have meant another category in an older version).
+	const product = await getProductByCode(summary.lot.productCode);
+	const binOf = { ...DEFAULT_BINS, ...(product?.plan.plan.bins ?? {}) };
+	const names = new Map<number, string>([[GOOD_BIN, 'good']]);
+	for (const c of BIN_CATEGORIES) names.set(binOf[c], names.has(binOf[c]) ? `${names.get(binOf[c])}, ${BIN_LABELS[c].toLowerCase()}` : BIN_LABELS[c].toLowerCase());
 	const bins = Object.entries(summary.bins)
-		.map(([bin, count]) => ({ bin: Number(bin), count, pct: summary.tested ? (100 * count) / summary.tested : 0 }))
+		.map(([bin, count]) => ({ bin: Number(bin), label: names.get(Number(bin)) ?? 'other', count, pct: summary.tested ? (100 * count) / summary.tested : 0 }))
 		.sort((a, b) => a.bin - b.bin);
 	return { summary, bins, biasV, total: page.total, units };
 }
