@@ -285,3 +285,23 @@ export async function waitForHttp(/** @type {string} */ url, timeoutMs = 60_000)
 	}
 	throw new Error(`no answer from ${url} within ${timeoutMs} ms`);
 }
+
+/**
+ * Starts the built server as a child process with its output in a log file.
+ * @param {{ buildDir: string, port: number, env: NodeJS.ProcessEnv, logFile: string }} o
+ */
+export function startApp(o) {
+	const log = fs.openSync(o.logFile, 'w');
+	return spawn(process.execPath, [path.join(o.buildDir, 'index.js')], {
+		cwd: root,
+		stdio: ['ignore', log, log],
+		env: { ...o.env, HOST: '127.0.0.1', PORT: String(o.port), ORIGIN: `http://127.0.0.1:${o.port}` }
+	});
+}
+
+/** Stops a child process and waits for it. @param {import('node:child_process').ChildProcess | null} p */
+export async function stopChild(p) {
+	if (!p || p.exitCode !== null) return;
+	p.kill('SIGTERM');
+	await new Promise((r) => p.once('exit', r));
+}

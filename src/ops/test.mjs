@@ -16,6 +16,8 @@ import {
 	freePort,
 	root,
 	say,
+	startApp,
+	stopChild,
 	waitForHttp
 } from './lib.mjs';
 
@@ -62,12 +64,8 @@ function vitestRun(args, env) {
 }
 
 async function cleanup() {
-	for (const p of [server, serverB]) {
-		if (p && p.exitCode === null) {
-			p.kill('SIGTERM');
-			await new Promise((r) => p.once('exit', r));
-		}
-	}
+	await stopChild(server);
+	await stopChild(serverB);
 	if (smtp) await smtp.stop();
 	await dropDatabase(adminUrl, dbUnit).catch(() => {});
 	await dropDatabase(adminUrl, dbE2e).catch(() => {});
@@ -102,15 +100,9 @@ try {
 		SHUTDOWN_TIMEOUT: '1',
 		BODY_SIZE_LIMIT: '2M'
 	};
+	const dir = process.env.BIASLINE_DATA_DIR ?? root;
 	/** @param {number} p @param {string} name */
-	const startServer = (p, name) => {
-		const log = fs.openSync(path.join(process.env.BIASLINE_DATA_DIR ?? root, `${name}.log`), 'w');
-		return spawn(process.execPath, [path.join(buildDir, 'index.js')], {
-			cwd: root,
-			stdio: ['ignore', log, log],
-			env: { ...serverEnv, PORT: String(p), ORIGIN: `http://127.0.0.1:${p}` }
-		});
-	};
+	const startServer = (p, name) => startApp({ buildDir, port: p, env: serverEnv, logFile: path.join(dir, `${name}.log`) });
 	const logFile = path.join(process.env.BIASLINE_DATA_DIR, 'e2e-server.log');
 	server = startServer(port, 'e2e-server');
 	await waitForHttp(`${url}/login`);
