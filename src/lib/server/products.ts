@@ -62,6 +62,13 @@ export async function planHistory(productId: number): Promise<PlanVersion[]> {
 	return rows.map((r) => ({ id: Number(r.id), version: r.version, plan: r.plan, note: r.note, createdAt: r.created_at.toISOString(), createdBy: r.created_by }));
 }
 
+/** JSON with object keys sorted, so a plan read back from jsonb (which reorders keys) compares equal. */
+export function canonicalJson(value: unknown): string {
+	return JSON.stringify(value, (_key, v: unknown) =>
+		v && typeof v === 'object' && !Array.isArray(v) ? Object.fromEntries(Object.entries(v).sort(([a], [b]) => a.localeCompare(b))) : v
+	);
+}
+
 export type CreateProductResult = { ok: true; product: ProductRecord } | { ok: false; field: string; message: string };
 
 /** Adds a product with plan version 1. The plan is assumed validated (SpecPlanSchema). */
@@ -102,7 +109,7 @@ export async function changePlan(
 		if (locked.length === 0) return { ok: false as const, message: 'No such product' };
 		const before = await getProduct(productId, t);
 		if (!before) return { ok: false as const, message: 'No such product' };
-		if (JSON.stringify(before.plan.plan) === JSON.stringify(plan)) return { ok: true as const, product: before, changed: false };
+		if (canonicalJson(before.plan.plan) === canonicalJson(plan)) return { ok: true as const, product: before, changed: false };
 		await db().query('INSERT INTO plan_versions (product_id, version, plan, note, created_by) VALUES (:id, :v, :plan, :note, :by)', {
 			replacements: { id: productId, v: before.plan.version + 1, plan: JSON.stringify(plan), note, by: actor.userId },
 			transaction: t
