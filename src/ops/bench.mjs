@@ -64,7 +64,7 @@ try {
 	const r = spawnSync(tsx, ['tests/bench/live.ts'], {
 		cwd: root,
 		encoding: 'utf8',
-		env: { ...process.env, BENCH_URL: `http://127.0.0.1:${port}`, BENCH_ADMIN_EMAIL: admin.email, BENCH_ADMIN_PASSWORD: admin.password }
+		env: { ...process.env, BENCH_URL: `http://127.0.0.1:${port}`, BENCH_DATABASE_URL: cluster.url(dbName), BENCH_ADMIN_EMAIL: admin.email, BENCH_ADMIN_PASSWORD: admin.password }
 	});
 	process.stdout.write(r.stdout);
 	if (r.status !== 0) {

@@ -2,6 +2,7 @@
 // latency with 1 and 200 subscribers, against the built server at BENCH_URL (npm run bench
 // starts it on a throwaway database). Prints markdown.
 import { randomUUID } from 'node:crypto';
+import pg from 'pg';
 
 const base = process.env.BENCH_URL ?? '';
 if (!base) throw new Error('BENCH_URL is not set: run npm run bench');
@@ -47,8 +48,50 @@ function unit(lot: string) {
 async function post(token: string, lot: string, n = 1) {
 	const units = Array.from({ length: n }, () => unit(lot));
 	const t0 = performance.now();
-	await json('/api/v1/results', { lot, units }, { authorization: `Bearer ${token}`, 'idempotency-key': randomUUID() });
-	return { t0, t1: performance.now(), serials: units.map((u) => u.serial) };
+	const res = await json('/api/v1/results', { lot, units }, { authorization: `Bearer ${token}`, 'idempotency-key': randomUUID() });
+	const spc = /spc;dur=([\d.]+)/.exec(res.headers.get('server-timing') ?? '');
+	return { t0, t1: performance.now(), serials: units.map((u) => u.serial), spcMs: spc ? Number(spc[1]) : Number.NaN };
+}
+
+/** Rule-evaluation time per single-part post (the server's own Server-Timing), n posts. */
+async function spcCost(token: string, lot: string, n: number): Promise<number[]> {
+	const out: number[] = [];
+	for (let i = 0; i < n; i++) out.push((await post(token, lot)).spcMs);
+	return out;
+}
+
+/**
+ * Stores a million parts for the lot's station (and a million points on each of its charts),
+ * straight in SQL: what a year of a busy station leaves behind.
+ */
+async function fillMillion(lot: string) {
+	const client = new pg.Client({ connectionString: process.env.BENCH_DATABASE_URL });
+	await client.connect();
+	try {
+		const t0 = performance.now();
+		await client.query(
+			`INSERT INTO units (lot_id, station_id, plan_version_id, calibration_id, serial, kind, tested_at, bin, pass, bias_v, capacitance_f)
+			 SELECT u.lot_id, u.station_id, u.plan_version_id, u.calibration_id, u.serial || '-m' || g, 'production', u.tested_at, u.bin, u.pass, u.bias_v, u.capacitance_f
+			 FROM (SELECT * FROM units WHERE lot_id = (SELECT id FROM lots WHERE number = $1) ORDER BY id LIMIT 1) u, generate_series(1, 1000000) g`,
+			[lot]
+		);
+		const charts = await client.query<{ id: string; point_count: number }>(
+			'SELECT c.id, c.point_count FROM charts c JOIN units u ON u.station_id = c.station_id WHERE u.id = (SELECT min(id) FROM units WHERE lot_id = (SELECT id FROM lots WHERE number = $1)) GROUP BY c.id',
+			[lot]
+		);
+		for (const c of charts.rows) {
+			await client.query(
+				`INSERT INTO chart_points (chart_id, seq, unit_id, value, at, limits_version)
+				 SELECT $1, $2 + g, (SELECT min(id) FROM units), 26.5, now(), 1 FROM generate_series(0, 999999) g`,
+				[c.id, c.point_count]
+			);
+			await client.query('UPDATE charts SET point_count = point_count + 1000000 WHERE id = $1', [c.id]);
+		}
+		await client.query('ANALYZE units; ANALYZE chart_points;');
+		return { seconds: (performance.now() - t0) / 1000, charts: charts.rows.length };
+	} finally {
+		await client.end();
+	}
 }
 
 /** Opens a stream and records when each unit event arrives (by serial). */
@@ -108,7 +151,8 @@ async function streamRun(cookie: string, token: string, lot: string, subscribers
 }
 
 const { cookie, token, lot } = await setup();
-for (let i = 0; i < 20; i++) await post(token, lot); // warm-up
+for (let i = 0; i < 40; i++) await post(token, lot); // warm-up; the first 30 parts freeze the charts' limits
+const spcFresh = await spcCost(token, lot, 200);
 const answers: number[] = [];
 for (let i = 0; i < 300; i++) {
 	const r = await post(token, lot);
@@ -121,12 +165,17 @@ for (let i = 0; i < 30; i++) {
 }
 const one = await streamRun(cookie, token, lot, 1, 100);
 const many = await streamRun(cookie, token, lot, 200, 100);
+const filled = await fillMillion(lot);
+for (let i = 0; i < 5; i++) await post(token, lot);
+const spcMillion = await spcCost(token, lot, 200);
 const lines = [
 	'| measurement | p50 | p95 | p99 | target |',
 	'|---|---|---|---|---|',
 	`| bin answer, one 8-point part per post, sequential (300 posts) | ${ms(pct(answers, 50))} | ${ms(pct(answers, 95))} | ${ms(pct(answers, 99))} | p99 ≤ 10 ms at 170 parts/s |`,
 	`| bin answer, 100 parts per post (30 posts) = ${(100_000 / pct(batch, 50)).toFixed(0)} parts/s at the median | ${ms(pct(batch, 50))} | ${ms(pct(batch, 95))} | ${ms(pct(batch, 99))} | ≥ 2 000 parts/s |`,
 	`| post → unit event, 1 subscriber (100 posts; ${one.missing} missed) | ${ms(pct(one.lat, 50))} | ${ms(pct(one.lat, 95))} | ${ms(pct(one.lat, 99))} | p95 < 250 ms |`,
+	`| control rules inside the post (Server-Timing spc), ${'~'}250 points per chart (200 posts, 9 charts each) | ${ms(pct(spcFresh, 50))} | ${ms(pct(spcFresh, 95))} | ${ms(pct(spcFresh, 99))} | < 2 ms |`,
+	`| the same with 1 000 000 more parts stored and 1 000 000 more points on each chart (filled in ${filled.seconds.toFixed(0)} s) | ${ms(pct(spcMillion, 50))} | ${ms(pct(spcMillion, 95))} | ${ms(pct(spcMillion, 99))} | < 2 ms |`,
 	`| post → unit event, 200 subscribers (100 posts; ${many.missing} missed) | ${ms(pct(many.lat, 50))} | ${ms(pct(many.lat, 95))} | ${ms(pct(many.lat, 99))} | p99 ≤ 250 ms |`
 ];
 console.log(['## Live server', '', ...lines].join('\n'));

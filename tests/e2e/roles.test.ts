@@ -1,3 +1,5 @@
+import fs from 'node:fs';
+import path from 'node:path';
 import { beforeAll, describe, expect, test } from 'vitest';
 import { baseUrl, cookieFor, PEOPLE, type Who } from './helpers';
 
@@ -123,4 +125,18 @@ describe('OpenAPI document', () => {
 		const users = doc.paths['/api/v1/users']?.post as { requestBody: { content: Record<string, { schema: { required?: string[] } }> } };
 		expect(users.requestBody.content['application/json']?.schema.required?.sort()).toEqual(['email', 'name', 'password', 'role']);
 	});
+
+	test('every endpoint under src/routes/api is in the document, with every method it exports', async () => {
+		const doc = (await (await fetch(`${baseUrl()}/api/v1/openapi.json`)).json()) as { paths: Record<string, Record<string, unknown>> };
+		const dir = path.join(process.cwd(), 'src', 'routes');
+		const files = fs.readdirSync(path.join(dir, 'api'), { recursive: true }).map(String).filter((f) => f.endsWith('+server.ts'));
+		expect(files.length).toBeGreaterThan(10);
+		for (const f of files) {
+			const route = '/api/' + path.dirname(f).replace(/\[(\w+)(=\w+)?\]/g, '{$1}');
+			const source = fs.readFileSync(path.join(dir, 'api', f), 'utf8');
+			const methods = [...source.matchAll(/export const (GET|POST|PUT|PATCH|DELETE)\b/g)].map((m) => (m[1] ?? '').toLowerCase());
+			for (const m of methods) expect({ route, method: m, documented: Boolean(doc.paths[route]?.[m]) }).toEqual({ route, method: m, documented: true });
+		}
+	});
 });
+

@@ -5,7 +5,7 @@ import { z } from 'zod';
 import { NewUserBody, SessionUserOut, SignInBody } from '$lib/schemas/people';
 import { LotBody, LotStatusBody, ProductBody, StationBody } from '$lib/schemas/setup';
 import { CalibrationBody, ResultsBody } from '$lib/schemas/station-api';
-import { UnitsQuery } from '$lib/schemas/query';
+import { AlarmChangeBody, AlarmsQuery, ChartQuery, ChartsQuery, RecomputeLimitsBody, UnitsQuery } from '$lib/schemas/query';
 
 const Problem = z
 	.object({
@@ -218,6 +218,75 @@ function build() {
 			...problems(400, 401, 404, 409, 413, 429)
 		}
 	});
+
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/alarms',
+		summary: 'Alarms, newest first, filtered by status, station, product or lot',
+		security: [{ session: [] }],
+		request: { query: AlarmsQuery },
+		responses: {
+			200: ok('Alarms', { alarms: [{ id: 12, rule: 'WE1', chart: { characteristic: 'C@1V', kind: 'production' }, station: 'A-02', status: 'open', suspect: 'product', at: '2026-03-02T07:15:00.000Z' }] }),
+			...problems(400, 401)
+		}
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/alarms/{id}',
+		summary: 'One alarm with its reasoning and history',
+		security: [{ session: [] }],
+		request: { params: z.object({ id: z.string() }) },
+		responses: { 200: ok('Alarm'), ...problems(401, 404) }
+	});
+	r.registerPath({
+		method: 'patch',
+		path: '/api/v1/alarms/{id}',
+		summary: 'Acknowledge (operator and up) or close with cause and action (engineer and up)',
+		security: [{ session: [] }],
+		request: { params: z.object({ id: z.string() }), ...jsonBody(AlarmChangeBody, { status: 'closed', cause: 'Socket contamination', action: 'Cleaned the socket; reference part re-measured in control' }) },
+		responses: { 200: ok('Changed alarm'), ...problems(400, 401, 403, 404, 409) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/charts',
+		summary: 'Control charts per station × product × characteristic (engineer, admin)',
+		security: [{ session: [] }],
+		request: { query: ChartsQuery },
+		responses: { 200: ok('Charts', { charts: [{ id: 3, station: 'A-01', productCode: 'KV-1405', kind: 'production', characteristic: 'C@1V', unit: 'pF', status: 'active', pointCount: 420 }] }), ...problems(400, 401, 403) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/charts/{id}',
+		summary: 'A chart: points, frozen limits, the chosen view (imr, xbar-r, xbar-s, ewma, cusum, p) and capability',
+		security: [{ session: [] }],
+		request: { params: z.object({ id: z.string() }), query: ChartQuery },
+		responses: { 200: ok('Chart detail'), ...problems(400, 401, 403, 404) }
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/charts/{id}/limits',
+		summary: 'Recompute the limits from a range of points with exclusions (engineer; versioned and audited)',
+		security: [{ session: [] }],
+		request: { params: z.object({ id: z.string() }), ...jsonBody(RecomputeLimitsBody, { fromSeq: 0, toSeq: 50, exclusions: [{ seq: 17, reason: 'Bent lead, retested' }], reason: 'New fixture socket' }) },
+		responses: { 201: ok('New limits version', { ok: true, version: 2 }), ...problems(400, 401, 403, 404) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/floor',
+		summary: 'The floor: a tile per station and totals per line',
+		security: [{ session: [] }],
+		responses: { 200: ok('Floor view'), ...problems(401) }
+	});
+	for (const method of ['get', 'post'] as const) {
+		r.registerPath({
+			method,
+			path: '/api/v1/stream',
+			summary: 'Server-sent events unit, yield and alarm; each has an id; reconnect with Last-Event-ID to receive what was missed',
+			security: [{ session: [] }],
+			request: { query: z.object({ lot: z.string().optional(), station: z.string().optional() }), headers: z.object({ 'Last-Event-ID': z.string().optional() }) },
+			responses: { 200: { description: 'text/event-stream', content: { 'text/event-stream': { schema: z.string() } } }, ...problems(401, 404) }
+		});
+	}
 	r.registerPath({
 		method: 'get',
 		path: '/api/v1/openapi.json',

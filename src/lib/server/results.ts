@@ -25,7 +25,7 @@ export type UnitAnswer = {
 };
 
 export type IngestOutcome =
-	| { ok: true; status: 200 | 201; replayed: boolean; body: { results: UnitAnswer[] }; alarms: OpenedAlarm[] }
+	| { ok: true; status: 200 | 201; replayed: boolean; body: { results: UnitAnswer[] }; alarms: OpenedAlarm[]; timings?: { judgeMs: number; spcMs: number } }
 	| { ok: false; status: 400 | 404 | 409; kind: string; detail: string; errors?: { path: string; message: string }[] };
 
 /** The hash that decides "the same body": SHA-256 of the request's bytes as sent. */
@@ -95,6 +95,7 @@ export async function ingestResults(
 		type: QueryTypes.SELECT
 	});
 
+	const judgeStart = performance.now();
 	const answers: UnitAnswer[] = [];
 	const records: Record<string, unknown>[] = [];
 	const charted: Omit<SpcUnit, 'id'>[] = [];
@@ -147,8 +148,10 @@ export async function ingestResults(
 	});
 	if (errors.length) return { ok: false, status: 400, kind: 'invalid-units', detail: 'Some units cannot be judged', errors };
 
+	const judgeMs = performance.now() - judgeStart;
 	const response = { results: answers };
 	let alarms: OpenedAlarm[] = [];
+	let spcMs = 0;
 	try {
 		await db().transaction(async (t) => {
 			// Claim the key first: a concurrent post with the same key waits here until this
@@ -185,12 +188,14 @@ export async function ingestResults(
 				   cj0_f float8, vj_v float8, m float8, cp_f float8, fit_rms_pct float8, failures jsonb)`,
 				{ replacements: { rows: JSON.stringify(records) }, transaction: t }
 			);
+			const spcStart = performance.now();
 			alarms = await chartBatch(
 				t,
 				station.id,
 				lot.productId,
 				charted.map((c, i) => ({ ...c, id: Number(records[i]?.id) }))
 			);
+			spcMs = performance.now() - spcStart;
 			const counted = records.filter((r) => r.kind === 'production');
 			if (counted.length) {
 				const perBin = new Map<number, number>();
@@ -237,7 +242,7 @@ export async function ingestResults(
 		if (e instanceof LotClosed) return { ok: false, status: 409, kind: 'lot-closed', detail: `Lot ${lot.number} is closed` };
 		throw e;
 	}
-	return { ok: true, status: 201, replayed: false, body: response, alarms };
+	return { ok: true, status: 201, replayed: false, body: response, alarms, timings: { judgeMs, spcMs } };
 }
 
 

@@ -37,5 +37,8 @@ export const POST: RequestHandler = async ({ request, locals, url }) => {
 	if (!parsed.success) return problem(400, 'Check the fields listed in errors; nothing was stored', { errors: issueList(parsed.error) });
 	const outcome = await ingestResults(station, key.data, requestHash(raw), parsed.data, new Date(), url.origin);
 	if (!outcome.ok) return problem(outcome.status, outcome.detail, { kind: outcome.kind, errors: outcome.errors });
-	return json(outcome.body, { status: outcome.status, headers: outcome.replayed ? { 'idempotent-replayed': 'true' } : {} });
+	const headers: Record<string, string> = outcome.replayed ? { 'idempotent-replayed': 'true' } : {};
+	// Server-Timing (W3C): where the post's time went, for benchmarks and station logs.
+	if (outcome.timings) headers['server-timing'] = `judge;dur=${outcome.timings.judgeMs.toFixed(2)}, spc;dur=${outcome.timings.spcMs.toFixed(2)}`;
+	return json(outcome.body, { status: outcome.status, headers });
 };
