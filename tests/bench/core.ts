@@ -8,17 +8,8 @@ import { pathToFileURL } from 'node:url';
 import { loadavg } from 'node:os';
 import { performance } from 'node:perf_hooks';
 import { evaluateUnit, formMatchedSets, resonanceFromPartCapacitance, type SpecPlan } from '../../src/lib/measure/index';
+import { prng } from '../support/prng';
 
-function prng(seed: number) {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
 const gauss = (rand: () => number) => Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand());
 
 const BIAS_V = [1, 2, 3, 4, 5, 6, 8, 10];

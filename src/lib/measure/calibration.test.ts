@@ -2,6 +2,7 @@
 // rule 1/C = 1/C1 + 1/C2; the reference readings are built from them here.
 import { describe, expect, it } from 'vitest';
 import { calibrateFixture, calibrationInForce, DEFAULT_CALIBRATION_LIMITS } from './calibration';
+import { prng } from '../../../tests/support/prng';
 
 const L = 1.02e-3;
 const STRAY = 11.5e-12;
@@ -12,16 +13,6 @@ const f = (c: number, cb: number | null) => {
 };
 const AT = Date.UTC(2026, 0, 5, 6, 0, 0);
 
-function prng(seed: number) {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
 
 describe('calibrateFixture', () => {
 	it.each([null, 1e-9, 10e-9])('exact line recovers L and the stray (Cb = %s)', (cb) => {

@@ -3,23 +3,10 @@
 // ngspice.test.ts). The synthetic data below are generated from that formula, written out here.
 import { describe, expect, it } from 'vitest';
 import { capacitanceAtBiasF, capacitanceRatio, fitJunction, sensitivityFPerV } from './fit';
+import { prng, gauss } from '../../../tests/support/prng';
 
 const spice = (cj0: number, vj: number, m: number, cp: number, v: number) => cj0 / Math.pow(1 + v / vj, m) + cp;
 
-/** mulberry32, a small seeded PRNG (public-domain algorithm) so noise is reproducible. */
-function prng(seed: number) {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
-function gauss(rand: () => number): number {
-	return Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand());
-}
 
 const BIAS = [0.5, 1, 2, 3, 4, 6, 10, 20];
 const PARTS = [

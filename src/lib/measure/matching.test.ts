@@ -3,18 +3,8 @@
 // definition of a matched set is the one documented in matching.ts.
 import { describe, expect, it } from 'vitest';
 import { formMatchedSets, isMatchedSet } from './matching';
+import { prng } from '../../../tests/support/prng';
 
-/** mulberry32 seeded PRNG (public-domain algorithm). */
-function prng(seed: number) {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
 
 /** Definition check written out independently of isMatchedSet. */
 function satisfiesDefinition(vectors: number[][], tolPct: number): boolean {
