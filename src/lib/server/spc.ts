@@ -199,6 +199,8 @@ async function freezeBaseline(t: Transaction, chart: ChartRow, n: number, batchP
 async function openAlarms(t: Transaction, stationId: number, pending: Pending[]): Promise<OpenedAlarm[]> {
 	const opened: OpenedAlarm[] = [];
 	for (const { violation, chart, unit, seq } of pending) {
+		// The rule engine counts points from the frozen limits; people read the chart's own numbering.
+		const description = violation.description.replace(/, at point \d+$/, `, at chart point ${seq}`);
 		const rows = await db().query<{ id: string; inserted: boolean }>(
 			`INSERT INTO alarms (chart_id, rule, description, first_seq, last_seq, unit_id, lot_id, last_at)
 			 VALUES (:chartId, :rule, :description, :seq, :seq, :unitId, :lotId, now())
@@ -206,7 +208,7 @@ async function openAlarms(t: Transaction, stationId: number, pending: Pending[])
 			 DO UPDATE SET last_seq = GREATEST(alarms.last_seq, EXCLUDED.last_seq), occurrences = alarms.occurrences + 1, last_at = now()
 			 RETURNING id, (xmax = 0) AS inserted`,
 			{
-				replacements: { chartId: chart.id, rule: violation.ruleId, description: violation.description, seq, unitId: unit.id, lotId: unit.lotId },
+				replacements: { chartId: chart.id, rule: violation.ruleId, description, seq, unitId: unit.id, lotId: unit.lotId },
 				type: QueryTypes.SELECT,
 				transaction: t
 			}
@@ -224,7 +226,7 @@ async function openAlarms(t: Transaction, stationId: number, pending: Pending[])
 			kind: chart.kind,
 			characteristic: chart.characteristic,
 			rule: violation.ruleId,
-			description: violation.description,
+			description,
 			lotId: unit.lotId,
 			unitId: unit.id,
 			...why
