@@ -117,19 +117,25 @@ export async function chartBatch(t: Transaction, stationId: number, productId: n
 	}
 	if (work.size === 0) return [];
 	const specs = [...work.values()].map((w) => ({ kind: w.kind, characteristic: w.characteristic, unit: w.unit }));
-	await db().query(
-		`INSERT INTO charts (station_id, product_id, kind, characteristic, unit)
-		 SELECT :stationId, :productId, kind, characteristic, unit FROM jsonb_to_recordset(CAST(:specs AS jsonb)) AS x(kind text, characteristic text, unit text)
-		 ON CONFLICT DO NOTHING`,
-		{ replacements: { stationId, productId, specs: JSON.stringify(specs) }, transaction: t }
-	);
-	// Locked in id order, so two posts touching the same charts cannot deadlock.
-	const rows = await db().query<ChartRow>(
-		`SELECT c.id, c.kind, c.characteristic, c.status, c.point_count, c.limits, c.limits_version, c.rule_state
-		 FROM charts c JOIN jsonb_to_recordset(CAST(:specs AS jsonb)) AS x(kind text, characteristic text) ON x.kind = c.kind AND x.characteristic = c.characteristic
-		 WHERE c.station_id = :stationId AND c.product_id = :productId ORDER BY c.id FOR UPDATE OF c`,
-		{ replacements: { stationId, productId, specs: JSON.stringify(specs) }, type: QueryTypes.SELECT, transaction: t }
-	);
+	const lockCharts = () =>
+		// Locked in id order, so two posts touching the same charts cannot deadlock.
+		db().query<ChartRow>(
+			`SELECT c.id, c.kind, c.characteristic, c.status, c.point_count, c.limits, c.limits_version, c.rule_state
+			 FROM charts c JOIN jsonb_to_recordset(CAST(:specs AS jsonb)) AS x(kind text, characteristic text) ON x.kind = c.kind AND x.characteristic = c.characteristic
+			 WHERE c.station_id = :stationId AND c.product_id = :productId ORDER BY c.id FOR UPDATE OF c`,
+			{ replacements: { stationId, productId, specs: JSON.stringify(specs) }, type: QueryTypes.SELECT, transaction: t }
+		);
+	// Usually every chart exists already: one round trip. New charts are created, then locked.
+	let rows = await lockCharts();
+	if (rows.length < specs.length) {
+		await db().query(
+			`INSERT INTO charts (station_id, product_id, kind, characteristic, unit)
+			 SELECT :stationId, :productId, kind, characteristic, unit FROM jsonb_to_recordset(CAST(:specs AS jsonb)) AS x(kind text, characteristic text, unit text)
+			 ON CONFLICT DO NOTHING`,
+			{ replacements: { stationId, productId, specs: JSON.stringify(specs) }, transaction: t }
+		);
+		rows = await lockCharts();
+	}
 	const points: Record<string, unknown>[] = [];
 	const limitRows: Record<string, unknown>[] = [];
 	const pending: Pending[] = [];
@@ -154,12 +160,6 @@ export async function chartBatch(t: Transaction, stationId: number, productId: n
 			}
 		}
 	}
-	await db().query(
-		`INSERT INTO chart_points (chart_id, seq, unit_id, value, at, limits_version, rules)
-		 SELECT chart_id, seq, unit_id, value, at, limits_version, rules FROM jsonb_to_recordset(CAST(:points AS jsonb))
-		   AS x(chart_id bigint, seq integer, unit_id bigint, value float8, at timestamptz, limits_version integer, rules text[])`,
-		{ replacements: { points: JSON.stringify(points) }, transaction: t }
-	);
 	if (limitRows.length) {
 		await db().query(
 			`INSERT INTO chart_limits (chart_id, version, limits, from_seq, to_seq, reason)
@@ -168,11 +168,16 @@ export async function chartBatch(t: Transaction, stationId: number, productId: n
 			{ replacements: { rows: JSON.stringify(limitRows) }, transaction: t }
 		);
 	}
+	// The new points and the charts' new state in one statement (one round trip).
 	await db().query(
-		`UPDATE charts c SET status = x.status, point_count = x.point_count, limits = x.limits, limits_version = x.limits_version, rule_state = x.rule_state
+		`WITH pts AS (
+		   INSERT INTO chart_points (chart_id, seq, unit_id, value, at, limits_version, rules)
+		   SELECT chart_id, seq, unit_id, value, at, limits_version, rules FROM jsonb_to_recordset(CAST(:points AS jsonb))
+		     AS x(chart_id bigint, seq integer, unit_id bigint, value float8, at timestamptz, limits_version integer, rules text[]))
+		 UPDATE charts c SET status = x.status, point_count = x.point_count, limits = x.limits, limits_version = x.limits_version, rule_state = x.rule_state
 		 FROM jsonb_to_recordset(CAST(:rows AS jsonb)) AS x(id bigint, status text, point_count integer, limits jsonb, limits_version integer, rule_state jsonb)
 		 WHERE c.id = x.id`,
-		{ replacements: { rows: JSON.stringify(rows) }, transaction: t }
+		{ replacements: { points: JSON.stringify(points), rows: JSON.stringify(rows) }, transaction: t }
 	);
 	return openAlarms(t, stationId, pending);
 }
