@@ -106,7 +106,12 @@ if (demo) {
 		const log = fs.openSync(path.join(env.BIASLINE_DATA_DIR, 'station-sim.log'), 'a');
 		sim = spawn(
 			process.execPath,
-			[path.join(root, 'station-sim', 'cli.mjs'), '--url', env.ORIGIN, '--tokens', tokens, '--rate', process.env.BIASLINE_SIM_RATE || '1', '--serial-start', 'auto', '--seed', String(Date.now() % 1_000_000)],
+			[
+				path.join(root, 'station-sim', 'cli.mjs'),
+				...['--url', env.ORIGIN, '--tokens', tokens, '--rate', process.env.BIASLINE_SIM_RATE || '1', '--serial-start', 'auto', '--seed', String(Date.now() % 1_000_000)],
+				// The demo's story: station A-02's tank inductor creeps, which its reference part shows first.
+				...(process.env.BIASLINE_SIM_FAULTS ?? 'drift@A-02=60').split(/\s+/).filter(Boolean).flatMap((f) => ['--fault', f])
+			],
 			{ stdio: ['ignore', log, log], cwd: root }
 		);
 		say(`simulated stations are testing parts (log: ${path.relative(root, path.join(env.BIASLINE_DATA_DIR, 'station-sim.log'))})`);

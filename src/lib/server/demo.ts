@@ -170,6 +170,13 @@ export async function seedDemo(dataDir: string): Promise<boolean> {
 				transaction: t
 			});
 		}
+		// The engineer follows Line A, with a 15-minute digest, so the demo's alarms reach the outbox.
+		await db().query(
+			`INSERT INTO subscriptions (user_id, scope, line_id) SELECT u.id, 'line', l.id FROM users u, lines l
+			 WHERE u.email = 'noor.haddad@corvane.example' AND l.name = 'Line A'`,
+			{ transaction: t }
+		);
+		await db().query("UPDATE users SET alarm_digest_minutes = 15 WHERE email = 'noor.haddad@corvane.example'", { transaction: t });
 		await db().query("INSERT INTO meta (key, value) VALUES ('demo-seeded', to_jsonb(now()))", { transaction: t });
 	});
 	fs.mkdirSync(dataDir, { recursive: true });
