@@ -8,8 +8,13 @@ import { computeBaseline, initialRuleState, step, type ChartRuleLimits, type Rul
 import { ALL_RULE_IDS } from '$lib/spc/types';
 import { db } from './db';
 
-/** Rules on by default (Western Electric 1–4); a plan can name others in `spc.rules`. */
-export const DEFAULT_RULES: readonly RuleId[] = ['WE1', 'WE2', 'WE3', 'WE4'];
+/**
+ * Rules on by default: WE1 (a point beyond 3 sigma) and WE4 (eight in a row on one side, the
+ * drift detector) — our choice. Every added rule raises the false-alarm rate of an in-control
+ * process, and a product charts several correlated characteristics; a plan can name more in
+ * `spc.rules`.
+ */
+export const DEFAULT_RULES: readonly RuleId[] = ['WE1', 'WE4'];
 /** Reference parts are measured rarely; our choice: their charts freeze after 10 points. */
 export const DEFAULT_REFERENCE_BASELINE = 10;
 const DEFAULT_BASELINE = 30;
