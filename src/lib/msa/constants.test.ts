@@ -3,7 +3,7 @@ import { d2Factor, d3Factor, d4Factor, k1Factor, kFromD2Star } from './constants
 import { loadControlChartConstants } from './testing/reference-fixtures';
 
 // Reference: control chart constants, ASTM MNL7 / Montgomery ISQC Appendix VI (Table A.22 for
-// n = 2..21, Joglekar 2003 App. G / ASTM for n = 22..25), as transcribed in
+// n = 2..21, Joglekar 2003 App. G / ASTM for n = 22..25), as copied in
 // shared/reference/spc/control-chart-constants.json (subset copied to
 // tests/reference/msa/control-chart-constants-subset.json).
 const constants = loadControlChartConstants();

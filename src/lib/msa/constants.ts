@@ -2,7 +2,7 @@
  * Constants of the average-and-range method.
  *
  * D4 (3 decimals), n = 2..25: ASTM MNL7 / Montgomery, Introduction to Statistical Quality Control,
- * Appendix VI, "Factors for Constructing Variables Control Charts", as transcribed in
+ * Appendix VI, "Factors for Constructing Variables Control Charts", as copied in
  * shared/reference/spc/control-chart-constants.json (`table`; Table A.22 for n = 2..21,
  * Joglekar, Statistical Methods for Six Sigma, Wiley 2003, App. G (ASTM) for n = 22..25).
  *

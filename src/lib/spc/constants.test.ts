@@ -5,7 +5,7 @@ import { loadReference } from './reference-data.test-helper';
 
 // Reference: control chart constants A2, A3, B3, B4, D3, D4, d2, d3, c4 for n = 2..25
 // (ASTM MNL7 / Montgomery ISQC Appendix VI lineage, Table A.22 and Joglekar App. G, as
-// transcribed in shared/reference/spc/control-chart-constants.json, copied to
+// copied in shared/reference/spc/control-chart-constants.json, copied to
 // tests/reference/spc/). Tolerance as its README recommends for constants computed from
 // their definitions: 0.0015 absolute for 3-decimal columns, 0.00015 for c4.
 const row = z.object({
