@@ -70,6 +70,13 @@ beforeAll(async () => {
 		body: new URLSearchParams({ scope: 'product', product: String(productId) })
 	});
 	expect(subscribe.status).toBe(200);
+	// One message per alarm (the demo gives this person a 15-minute digest).
+	const digest = await fetch(`${baseUrl()}/account?/digest`, {
+		method: 'POST',
+		headers: { cookie: engineer, origin: baseUrl(), 'content-type': 'application/x-www-form-urlencoded', accept: 'application/json' },
+		body: new URLSearchParams({ digest: '0' })
+	});
+	expect(digest.status).toBe(200);
 	const st = await fetch(`${baseUrl()}/api/v1/stations`, json(admin, 'POST', { name: stationName, fixture: FIXTURE }));
 	token = ((await st.json()) as { token: string }).token;
 	expect((await fetch(`${baseUrl()}/api/v1/lots`, json(operator, 'POST', { number: lotNumber, productCode: code, quantity: 100 }))).status).toBe(201);
