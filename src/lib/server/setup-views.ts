@@ -136,8 +136,8 @@ export async function listLotsWithYield(): Promise<LotListRow[]> {
 	const [lots, counts] = await Promise.all([
 		listLots(),
 		db().query<{ lot_id: string; tested: string; passed: string }>(
-			`SELECT lot_id, count(*) AS tested, count(*) FILTER (WHERE bin = 1) AS passed FROM units
-			 WHERE kind IN ('production', 'bench') GROUP BY lot_id`,
+			// The ingest's per-lot bin counters: a few rows per lot, whatever the number of parts.
+			`SELECT lot_id, sum(n) AS tested, coalesce(sum(n) FILTER (WHERE bin = 1), 0) AS passed FROM lot_bin_counts GROUP BY lot_id`,
 			{ type: QueryTypes.SELECT }
 		)
 	]);
