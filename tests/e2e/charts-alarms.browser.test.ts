@@ -2,7 +2,7 @@ import { randomUUID } from 'node:crypto';
 import path from 'node:path';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import { baseUrl, cookieFor, launch, screenshotDir, type Who } from './helpers';
+import { baseUrl, cookieOnce as cookie, launch, screenshotDir, signedInPage, SIZES, type Who } from './helpers';
 import { abruptPartF, pF, referenceReadings, resonanceHz, type TestFixture } from './physics';
 
 // The Charts and Alarms screens in Chromium. Data as in spc.test.ts: a product whose first 10
@@ -15,10 +15,6 @@ const tag = randomUUID().slice(0, 8);
 const code = `CAU-${tag}`;
 const lotNumber = `LT-CA-${tag}`;
 const stationName = `CA-${tag}`;
-const SIZES = [
-	{ width: 1366, height: 768 },
-	{ width: 1920, height: 1080 }
-];
 // Relative deviations of the 10 baseline parts; sigma of individuals = MR̄/1.128 (d2 for n = 2).
 const BASELINE = [0.002, -0.002, 0.001, -0.002, 0.002, -0.001, 0.002, -0.002, 0.001, -0.001];
 const mrBar = BASELINE.slice(1).reduce((a, b, i) => a + Math.abs(b - (BASELINE[i] ?? 0)), 0) / (BASELINE.length - 1);
@@ -29,7 +25,6 @@ let token = '';
 let serialNo = 0;
 let chartId = 0;
 let alarmId = 0;
-const cookies = new Map<Who, string>();
 
 const json = (cookie: string, method: string, body: unknown) => ({ method, headers: { cookie, 'content-type': 'application/json' }, body: JSON.stringify(body) });
 
@@ -65,20 +60,7 @@ async function newStation(name: string): Promise<string> {
 	return stationToken;
 }
 
-async function cookie(who: Who): Promise<string> {
-	const known = cookies.get(who);
-	if (known) return known;
-	const fresh = await cookieFor(who);
-	cookies.set(who, fresh);
-	return fresh;
-}
-
-async function signedIn(who: Who, viewport = SIZES[0]): Promise<Page> {
-	const context = await browser.newContext({ viewport });
-	const [name = '', value = ''] = (await cookie(who)).split(/=(.*)/s);
-	await context.addCookies([{ name, value, url: baseUrl() }]);
-	return context.newPage();
-}
+const signedIn = (who: Who, viewport: { width: number; height: number } = SIZES[0]): Promise<Page> => signedInPage(browser, who, viewport);
 
 async function shot(page: Page, name: string) {
 	await page.evaluate(() => window.scrollTo(0, 0));

@@ -2,7 +2,7 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { chromium, type Browser } from 'playwright-core';
+import { chromium, type Browser, type Page } from 'playwright-core';
 
 export function baseUrl(): string {
 	const url = process.env.BIASLINE_E2E_URL;
@@ -58,4 +58,29 @@ export function screenshotDir(): string {
 	const dir = process.env.SCREENSHOT_DIR ?? path.join(process.env.BIASLINE_DATA_DIR ?? os.tmpdir(), 'screenshots');
 	fs.mkdirSync(dir, { recursive: true });
 	return dir;
+}
+
+export const SIZES = [
+	{ width: 1366, height: 768 },
+	{ width: 1920, height: 1080 }
+] as const;
+
+// Sign-ins are limited per client address and every test file shares one server, so each role
+// signs in once per file and reuses its cookie.
+const cookieCache = new Map<Who, Promise<string>>();
+export function cookieOnce(who: Who): Promise<string> {
+	let c = cookieCache.get(who);
+	if (!c) {
+		c = cookieFor(who);
+		cookieCache.set(who, c);
+	}
+	return c;
+}
+
+/** A new browser context signed in as `who` (the session cookie set directly) and its page. */
+export async function signedInPage(browser: Browser, who: Who, viewport: { width: number; height: number } = SIZES[0]): Promise<Page> {
+	const context = await browser.newContext({ viewport });
+	const [name = '', value = ''] = (await cookieOnce(who)).split(/=(.*)/s);
+	await context.addCookies([{ name, value, url: baseUrl() }]);
+	return context.newPage();
 }

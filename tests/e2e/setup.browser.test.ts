@@ -2,7 +2,7 @@
 import path from 'node:path';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import { baseUrl, cookieFor, launch, screenshotDir, type Who } from './helpers';
+import { baseUrl, cookieOnce as cookie, launch, screenshotDir, signedInPage, SIZES, type Who } from './helpers';
 
 let browser: Browser;
 beforeAll(async () => {
@@ -12,10 +12,6 @@ afterAll(async () => {
 	await browser?.close();
 });
 
-const SIZES = [
-	{ width: 1366, height: 768 },
-	{ width: 1920, height: 1080 }
-];
 // Unique per run, so the tests can run again against the same database.
 const RUN = Date.now().toString(36).slice(-5).toUpperCase();
 const CODE = `TV-${RUN}`;
@@ -39,22 +35,8 @@ const BLOCK_F = 100e-9;
 /** Resonance of the tank with capacitance c in the socket (in series with the blocking capacitor). */
 const resonanceHz = (c: number) => 1 / (2 * Math.PI * Math.sqrt(L_H * ((c * BLOCK_F) / (c + BLOCK_F) + STRAY_F)));
 
-// Sign-ins are limited per client address (and every test file shares this server), so each
-// role signs in once through the API and the browser contexts reuse its cookie.
-const cookies = new Map<Who, string>();
-async function cookie(who: Who): Promise<string> {
-	const known = cookies.get(who);
-	if (known) return known;
-	const fresh = await cookieFor(who);
-	cookies.set(who, fresh);
-	return fresh;
-}
-
-async function signedIn(who: Who, viewport = SIZES[0]): Promise<Page> {
-	const context = await browser.newContext({ viewport });
-	const [name = '', value = ''] = (await cookie(who)).split(/=(.*)/s);
-	await context.addCookies([{ name, value, url: baseUrl() }]);
-	const page = await context.newPage();
+async function signedIn(who: Who, viewport: { width: number; height: number } = SIZES[0]): Promise<Page> {
+	const page = await signedInPage(browser, who, viewport);
 	await page.goto(`${baseUrl()}/floor`);
 	expect(new URL(page.url()).pathname).toBe('/floor');
 	return page;

@@ -1,24 +1,18 @@
-import { randomUUID } from 'node:crypto';
 import { beforeAll, describe, expect, test } from 'vitest';
-import { baseUrl, cookieFor } from './helpers';
-import { abruptPartF, pF, referenceReadings, resonanceHz, type TestFixture } from './physics';
+import { baseUrl, cookieOnce } from './helpers';
+import { jsonInit as json, setUpLine, type TestLine, type TestPart } from './line';
+import { pF } from './physics';
 
 // Control charts inside the post. Rules as labelled in tests/reference/spc/rules.md:
 // WE1 (Western Electric 1956, rule 1): one point beyond 3 sigma; WE4: eight successive points
 // on one side of the centre line. The baseline is 10 parts with a hand-made spread; the
 // individuals chart's sigma is MR̄/d2 (NIST/SEMATECH e-Handbook 6.3.2.2; d2 = 1.128 for n = 2).
 
-const FIXTURE: TestFixture = { inductanceH: 100e-6, strayF: 3.0 * pF, blockingF: 100e-9, arrangement: 'single' };
-const BIASES = [1, 4];
-const tag = randomUUID().slice(0, 8);
-const code = `SPC-${tag}`;
-const lotNumber = `LT-S-${tag}`;
-const stationName = `S-${tag}`;
 let admin = '';
 let engineer = '';
 let operator = '';
-let token = '';
-let serialNo = 0;
+let line: TestLine;
+let stationName = '';
 
 // Relative deviations of the 10 baseline parts: mean 0, moving ranges 0.3–0.5 %.
 const BASELINE = [0.002, -0.002, 0.001, -0.002, 0.002, -0.001, 0.002, -0.002, 0.001, -0.001];
@@ -26,24 +20,8 @@ const mean = BASELINE.reduce((a, b) => a + b, 0) / BASELINE.length;
 const mrBar = BASELINE.slice(1).reduce((a, b, i) => a + Math.abs(b - (BASELINE[i] ?? 0)), 0) / (BASELINE.length - 1);
 const sigmaRel = mrBar / 1.128;
 
-function unit(relative: number) {
-	serialNo++;
-	return {
-		serial: `${lotNumber}-${String(serialNo).padStart(4, '0')}`,
-		testedAt: new Date().toISOString(),
-		points: BIASES.map((v) => ({ biasV: v, resonanceHz: resonanceHz(FIXTURE, abruptPartF(v) * (1 + relative)) }))
-	};
-}
-
-async function postUnits(units: ReturnType<typeof unit>[]) {
-	const res = await fetch(`${baseUrl()}/api/v1/results`, {
-		method: 'POST',
-		headers: { 'content-type': 'application/json', authorization: `Bearer ${token}`, 'idempotency-key': randomUUID() },
-		body: JSON.stringify({ lot: lotNumber, units })
-	});
-	expect(res.status).toBe(201);
-	return (await res.json()) as { results: { serial: string; pass: boolean; bin: number }[] };
-}
+const unit = (relative: number) => line.part(relative);
+const postUnits = (parts: TestPart[]) => line.post(parts);
 
 type Alarm = { id: number; rule: string; chart: { characteristic: string; kind: string }; unitSerial: string; occurrences: number; suspect: string; reasoning: string; status: string };
 async function alarms(): Promise<Alarm[]> {
@@ -52,22 +30,22 @@ async function alarms(): Promise<Alarm[]> {
 	return ((await res.json()) as { alarms: Alarm[] }).alarms;
 }
 
-const json = (cookie: string, method: string, body: unknown) => ({ method, headers: { cookie, 'content-type': 'application/json' }, body: JSON.stringify(body) });
-
 beforeAll(async () => {
-	[admin, engineer, operator] = await Promise.all([cookieFor('admin'), cookieFor('engineer'), cookieFor('operator')]);
-	const plan = {
-		points: [{ biasV: 1, minF: 20 * pF, maxF: 35 * pF }, { biasV: 4, minF: 12 * pF, maxF: 22 * pF }],
-		spc: { baselineParts: 10, rules: ['WE1', 'WE4'] }
-	};
-	const product = await fetch(`${baseUrl()}/api/v1/products`, json(engineer, 'POST', { code, name: 'SPC test part', plan }));
-	expect(product.status).toBe(201);
+	[admin, engineer, operator] = await Promise.all([cookieOnce('admin'), cookieOnce('engineer'), cookieOnce('operator')]);
+	line = await setUpLine({
+		prefix: 'SPC',
+		biases: [1, 4],
+		plan: {
+			points: [{ biasV: 1, minF: 20 * pF, maxF: 35 * pF }, { biasV: 4, minF: 12 * pF, maxF: 22 * pF }],
+			spc: { baselineParts: 10, rules: ['WE1', 'WE4'] }
+		}
+	});
+	stationName = line.stationName;
 	// The engineer follows the product, so its alarms reach them by e-mail.
-	const productId = ((await product.json()) as { id: number }).id;
 	const subscribe = await fetch(`${baseUrl()}/account?/subscribe`, {
 		method: 'POST',
 		headers: { cookie: engineer, origin: baseUrl(), 'content-type': 'application/x-www-form-urlencoded', accept: 'application/json' },
-		body: new URLSearchParams({ scope: 'product', product: String(productId) })
+		body: new URLSearchParams({ scope: 'product', product: String(line.productId) })
 	});
 	expect(subscribe.status).toBe(200);
 	// One message per alarm (the demo gives this person a 15-minute digest).
@@ -77,15 +55,6 @@ beforeAll(async () => {
 		body: new URLSearchParams({ digest: '0' })
 	});
 	expect(digest.status).toBe(200);
-	const st = await fetch(`${baseUrl()}/api/v1/stations`, json(admin, 'POST', { name: stationName, fixture: FIXTURE }));
-	token = ((await st.json()) as { token: string }).token;
-	expect((await fetch(`${baseUrl()}/api/v1/lots`, json(operator, 'POST', { number: lotNumber, productCode: code, quantity: 100 }))).status).toBe(201);
-	const cal = await fetch(`${baseUrl()}/api/v1/calibrations`, {
-		method: 'POST',
-		headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
-		body: JSON.stringify({ references: referenceReadings(FIXTURE) })
-	});
-	expect(cal.status).toBe(201);
 	await postUnits(BASELINE.map(unit));
 });
 

@@ -1,17 +1,14 @@
-import { randomUUID } from 'node:crypto';
 import { beforeAll, describe, expect, test } from 'vitest';
-import { baseUrl, baseUrlB, cookieFor } from './helpers';
-import { abruptPartF, pF, referenceReadings, resonanceHz, type TestFixture } from './physics';
+import { baseUrl, baseUrlB, cookieOnce } from './helpers';
+import { setUpLine, type TestLine } from './line';
+import { pF } from './physics';
 
 // The live stream of the contract: server-sent events (WHATWG HTML, "Server-sent events":
 // fields `id`, `event`, `data`, blank line ends an event; `Last-Event-ID` on reconnect).
 
-const FIXTURE: TestFixture = { inductanceH: 100e-6, strayF: 3 * pF, blockingF: 100e-9, arrangement: 'single' };
-const tag = randomUUID().slice(0, 8);
-const lotNumber = `LT-L-${tag}`;
 let cookie = '';
-let token = '';
-let n = 0;
+let line: TestLine;
+let lotNumber = '';
 
 type Sse = { id: number; event: string; data: Record<string, unknown> };
 
@@ -58,34 +55,15 @@ async function collect(path: string, opts: { lastEventId?: number; until: (event
 }
 
 async function postBatch(count: number) {
-	const units = Array.from({ length: count }, () => {
-		n++;
-		return { serial: `${lotNumber}-${n}`, testedAt: new Date().toISOString(), points: [1, 4].map((v) => ({ biasV: v, resonanceHz: resonanceHz(FIXTURE, abruptPartF(v)) })) };
-	});
-	const res = await fetch(`${baseUrl()}/api/v1/results`, {
-		method: 'POST',
-		headers: { 'content-type': 'application/json', authorization: `Bearer ${token}`, 'idempotency-key': randomUUID() },
-		body: JSON.stringify({ lot: lotNumber, units })
-	});
-	expect(res.status).toBe(201);
-	return units.map((u) => u.serial);
+	const parts = Array.from({ length: count }, () => line.part());
+	await line.post(parts);
+	return parts.map((u) => u.serial);
 }
 
 beforeAll(async () => {
-	cookie = await cookieFor('engineer');
-	const admin = await cookieFor('admin');
-	const post = (path: string, body: unknown, c: string) => fetch(baseUrl() + path, { method: 'POST', headers: { cookie: c, 'content-type': 'application/json' }, body: JSON.stringify(body) });
-	const code = `STR-${tag}`;
-	expect((await post('/api/v1/products', { code, name: 'Stream test', plan: { points: [{ biasV: 1, minF: 20 * pF, maxF: 35 * pF }, { biasV: 4 }] } }, cookie)).status).toBe(201);
-	const st = await post('/api/v1/stations', { name: `L-${tag}`, fixture: FIXTURE }, admin);
-	token = ((await st.json()) as { token: string }).token;
-	expect((await post('/api/v1/lots', { number: lotNumber, productCode: code, quantity: 100 }, cookie)).status).toBe(201);
-	const cal = await fetch(`${baseUrl()}/api/v1/calibrations`, {
-		method: 'POST',
-		headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
-		body: JSON.stringify({ references: referenceReadings(FIXTURE) })
-	});
-	expect(cal.status).toBe(201);
+	cookie = await cookieOnce('engineer');
+	line = await setUpLine({ prefix: 'STR', biases: [1, 4], plan: { points: [{ biasV: 1, minF: 20 * pF, maxF: 35 * pF }, { biasV: 4 }] } });
+	lotNumber = line.lotNumber;
 });
 
 describe('live stream', () => {
