@@ -37,7 +37,7 @@ const resonanceHz = (c: number) => 1 / (2 * Math.PI * Math.sqrt(L_H * ((c * BLOC
 
 async function signedIn(who: Who, viewport: { width: number; height: number } = SIZES[0]): Promise<Page> {
 	const page = await signedInPage(browser, who, viewport);
-	await page.goto(`${baseUrl()}/floor`);
+	await page.goto(`${baseUrl()}/floor`, { waitUntil: 'networkidle' });
 	expect(new URL(page.url()).pathname).toBe('/floor');
 	return page;
 }
@@ -73,7 +73,7 @@ const POINTS: [string, string, string][] = [
 describe('products and spec plans in Chromium', () => {
 	test('an engineer creates a product with an 8-point plan and sees version 1', async () => {
 		const page = await signedIn('engineer');
-		await page.goto(`${baseUrl()}/products`);
+		await page.goto(`${baseUrl()}/products`, { waitUntil: 'networkidle' });
 		await page.click('a:has-text("New product")');
 		await page.waitForURL(/\/products\/new$/);
 		expect(await page.locator('tr[data-row]').count()).toBe(8);
@@ -117,7 +117,7 @@ describe('products and spec plans in Chromium', () => {
 
 	test('changing a limit makes version 2 with the change listed; saving again unchanged makes none', async () => {
 		const page = await signedIn('engineer');
-		await page.goto(`${baseUrl()}/products/${CODE}`);
+		await page.goto(`${baseUrl()}/products/${CODE}`, { waitUntil: 'networkidle' });
 		expect(await page.inputValue('#f-points-1-maxPF')).toBe('29');
 		await page.fill('#f-points-1-maxPF', '29.5');
 		await page.fill('#f-note', 'Upper limit at 1 V widened after customer review');
@@ -143,7 +143,7 @@ describe('products and spec plans in Chromium', () => {
 
 	test('min above max in row 3 and a non-number are shown beside their cells and make no version', async () => {
 		const page = await signedIn('engineer');
-		await page.goto(`${baseUrl()}/products/${CODE}`);
+		await page.goto(`${baseUrl()}/products/${CODE}`, { waitUntil: 'networkidle' });
 		await page.fill('#f-points-2-minPF', '20');
 		await page.fill('#f-points-2-maxPF', '18');
 		await page.fill('#f-points-4-minPF', '12,5x');
@@ -188,7 +188,7 @@ describe('products and spec plans in Chromium', () => {
 describe('stations and lots in Chromium', () => {
 	test('an admin adds a station and sees its token once', async () => {
 		const page = await signedIn('admin', SIZES[1]);
-		await page.goto(`${baseUrl()}/stations`);
+		await page.goto(`${baseUrl()}/stations`, { waitUntil: 'networkidle' });
 		await page.fill('#f-name', STATION);
 		await page.fill('#f-line', 'Line A');
 		await page.fill('#f-inductanceUH', '100');
@@ -232,7 +232,7 @@ describe('stations and lots in Chromium', () => {
 
 	test('an operator opens a lot, loads it onto a station and closes it', async () => {
 		const page = await signedIn('operator');
-		await page.goto(`${baseUrl()}/lots`);
+		await page.goto(`${baseUrl()}/lots`, { waitUntil: 'networkidle' });
 		await page.click('button:has-text("Open lot")');
 		await expect.poll(() => page.locator('#f-number-err').textContent()).toContain('Enter a lot number');
 		expect(await page.locator('#f-productCode ~ .field-error').textContent()).toContain('Choose a product');
@@ -243,7 +243,7 @@ describe('stations and lots in Chromium', () => {
 		const row = page.locator(`tr[data-lot="${LOT}"]`);
 		await expect.poll(() => row.count()).toBe(1);
 		expect(await row.locator('[data-testid=lot-status]').textContent()).toBe('open');
-		await page.goto(`${baseUrl()}/stations/${STATION}`);
+		await page.goto(`${baseUrl()}/stations/${STATION}`, { waitUntil: 'networkidle' });
 		await page.selectOption('#f-lot', LOT);
 		await page.click('button:has-text("Load")');
 		await expect.poll(() => page.locator('[data-testid=current-lot]').textContent()).toContain(LOT);
@@ -259,9 +259,9 @@ describe('stations and lots in Chromium', () => {
 			points: [1, 2, 4, 8, 15, 25].map((v) => ({ biasV: v, resonanceHz: resonanceHz(2 * partF(v)), bandwidthHz: resonanceHz(2 * partF(v)) / 300 }))
 		}));
 		expect((await stationApi(stationToken, 'results', { lot: LOT, units }, { 'idempotency-key': `setup-${RUN}` })).status).toBe(201);
-		await page.goto(`${baseUrl()}/stations`);
+		await page.goto(`${baseUrl()}/stations`, { waitUntil: 'networkidle' });
 		expect(await page.locator(`[data-station-row="${STATION}"]`).textContent()).toContain('in force until');
-		await page.goto(`${baseUrl()}/lots`);
+		await page.goto(`${baseUrl()}/lots`, { waitUntil: 'networkidle' });
 		expect(await row.locator('td').nth(6).textContent()).toBe('5');
 		await row.locator('button:has-text("Close")').click();
 		await expect.poll(() => row.locator('[data-testid=lot-status]').textContent()).toBe('closed');
@@ -278,7 +278,7 @@ describe('stations and lots in Chromium', () => {
 describe('revoking a station token', () => {
 	test('an admin revokes the token after confirming; the station is refused from then on', async () => {
 		const page = await signedIn('admin');
-		await page.goto(`${baseUrl()}/stations/${STATION}`);
+		await page.goto(`${baseUrl()}/stations/${STATION}`, { waitUntil: 'networkidle' });
 		await page.click('button:has-text("Revoke token…")');
 		await page.click('button:has-text("Yes, revoke")');
 		await expect.poll(() => page.locator('[role=status]').first().textContent()).toContain('Token revoked');
@@ -304,7 +304,7 @@ describe('set-up pages at shop-floor and laptop sizes', () => {
 			for (const p of pages) {
 				const page = seen.get(p.who) ?? (await signedIn(p.who, v));
 				seen.set(p.who, page);
-				const res = await page.goto(`${baseUrl()}${p.url}`);
+				const res = await page.goto(`${baseUrl()}${p.url}`, { waitUntil: 'networkidle' });
 				expect(res?.status(), p.url).toBe(200);
 				await shot(page, `${p.name}-${v.width}`);
 			}
