@@ -92,10 +92,40 @@ export function evaluateUnit(input: EvaluateInput): EvaluateResult | Failed {
 		const esr = c.ok ? partEsrOhm({ ...setup, resonanceHz: p.resonanceHz, q: qf.q }) : null;
 		esrOhm.push(esr && esr.ok ? esr.esrOhm : null);
 	}
-	const usable = pts.flatMap((p, i) => {
-		const c = capacitanceF[i];
-		return c === null || c === undefined ? [] : [{ biasV: p.biasV, c }];
+	const judged = judgeCapacitances({
+		plan: input.plan,
+		points: pts.map((p, i) => ({ biasV: p.biasV, capacitanceF: capacitanceF[i] ?? null, q: q[i] ?? null })),
+		leakageA: leakageA ?? null,
+		priorFailures: prior
 	});
+	const { judgement, fit } = judged;
+	return {
+		ok: true,
+		bin: judgement.bin,
+		pass: judgement.pass,
+		capacitanceF,
+		q: anyBandwidth ? q : null,
+		esrOhm: anyBandwidth ? esrOhm : null,
+		fit,
+		failures: judgement.failures
+	};
+}
+
+export type CapacitancePoint = { biasV: number; capacitanceF: number | null; q: number | null };
+
+export type CapacitanceJudgement = {
+	judgement: { bin: number; pass: boolean; failures: SpecFailure[] };
+	fit: { cj0F: number; vjV: number; m: number; cpF: number; rmsPct: number } | null;
+};
+
+/**
+ * Fits and judges one part whose capacitances are already known (a bench meter's readings, or
+ * capacitances converted from resonances): the junction fit over the usable points (3 or more),
+ * then the plan's judgement. Assumes a plan accepted by validateSpecPlan and distinct, finite
+ * biases; a null capacitance is an unusable reading and must come with a prior failure.
+ */
+export function judgeCapacitances(input: { plan: SpecPlan; points: CapacitancePoint[]; leakageA: number | null; priorFailures?: SpecFailure[] }): CapacitanceJudgement {
+	const usable = input.points.flatMap((p) => (p.capacitanceF === null ? [] : [{ biasV: p.biasV, c: p.capacitanceF }]));
 	const maxRmsPct = input.plan.fit?.maxRmsPct;
 	const fitRes =
 		usable.length >= 3
@@ -108,19 +138,10 @@ export function evaluateUnit(input: EvaluateInput): EvaluateResult | Failed {
 	const fit = fitRes && fitRes.ok ? { ...fitRes.params, rmsPct: fitRes.rmsPct } : null;
 	const judgement = judgeUnit({
 		plan: input.plan,
-		points: pts.map((p, i) => ({ biasV: p.biasV, capacitanceF: capacitanceF[i] ?? null, q: q[i] ?? null })),
+		points: input.points,
 		fit: fitRes && fitRes.ok ? { params: fitRes.params, rmsPct: fitRes.rmsPct } : null,
-		leakageA: leakageA ?? null,
-		priorFailures: prior
+		leakageA: input.leakageA,
+		priorFailures: input.priorFailures ?? []
 	});
-	return {
-		ok: true,
-		bin: judgement.bin,
-		pass: judgement.pass,
-		capacitanceF,
-		q: anyBandwidth ? q : null,
-		esrOhm: anyBandwidth ? esrOhm : null,
-		fit,
-		failures: judgement.failures
-	};
+	return { judgement, fit };
 }

@@ -40,5 +40,5 @@ export {
 	type JudgeInput,
 	type Judgement
 } from './spec';
-export { evaluateUnit, type EvaluateInput, type EvaluateResult, type UnitPoint } from './evaluate';
+export { evaluateUnit, judgeCapacitances, type CapacitanceJudgement, type CapacitancePoint, type EvaluateInput, type EvaluateResult, type UnitPoint } from './evaluate';
 export { formMatchedSets, isMatchedSet, MATCHING_WINDOW, MATCHING_SCAN, type MatchPart, type MatchResult } from './matching';
