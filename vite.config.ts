@@ -6,8 +6,9 @@ export default defineConfig({
 	plugins: [tailwindcss(), sveltekit()],
 	server: { watch: { ignored: ['**/.data/**', '**/.test-data/**', '**/build/**'] } },
 	test: {
-		// Three projects: pure unit tests beside the code, integration tests against a real
-		// PostgreSQL (DATABASE_URL set by src/ops/test.mjs), and browser tests against the built server.
+		// Four projects: pure unit tests beside the code, integration tests against a real
+		// PostgreSQL (DATABASE_URL set by src/ops/test.mjs), browser tests against the built server, and
+		// fault tests (below).
 		projects: [
 			{
 				extends: true,
@@ -32,6 +33,19 @@ export default defineConfig({
 					environment: 'node',
 					fileParallelism: false,
 					testTimeout: 60_000,
+					hookTimeout: 120_000
+				}
+			},
+			{
+				// Fault tests (run last by src/ops/test.mjs): each file starts, kills and stops app
+				// instances and a PostgreSQL cluster of its own; bounded in time.
+				extends: true,
+				test: {
+					name: 'faults',
+					include: ['tests/faults/**/*.test.ts'],
+					environment: 'node',
+					fileParallelism: false,
+					testTimeout: 180_000,
 					hookTimeout: 120_000
 				}
 			}

@@ -6,10 +6,14 @@ declare global {
 		interface Error {
 			message: string;
 			errorId?: string;
+			/** The database was unavailable (the answer is a 503 with Retry-After). */
+			unavailable?: boolean;
 		}
 		interface Locals {
 			user: SessionUser | null;
 			station: StationPrincipal | null;
+			/** Set by handleError when the request failed because the database was away. */
+			databaseUnavailable?: boolean;
 		}
 		// interface PageData {}
 		// interface PageState {}

@@ -7,6 +7,7 @@ import { problem } from '$lib/server/problem';
 import { stationFromToken } from '$lib/server/stations';
 import { startMailSender } from '$lib/server/mail/sender';
 import { prepareDatabase } from '$lib/server/setup';
+import { DATABASE_RETRY_AFTER_S, isDatabaseUnavailable } from '$lib/server/db/unavailable';
 
 export const init: ServerInit = async () => {
 	if (building) return;
@@ -14,16 +15,47 @@ export const init: ServerInit = async () => {
 	startMailSender();
 };
 
+const unavailableDetail = 'The database is unavailable at the moment; nothing was stored. Try again shortly.';
+const unavailableProblem = () =>
+	problem(503, unavailableDetail, { kind: 'database-unavailable', headers: { 'retry-after': String(DATABASE_RETRY_AFTER_S) } });
+
 const authenticate: Handle = async ({ event, resolve }) => {
-	event.locals.user = await userFromToken(event.cookies.get(SESSION_COOKIE));
 	event.locals.station = null;
-	// Stations authenticate with a bearer token on the API only; a browser never sends one.
-	const auth = event.request.headers.get('authorization');
-	if (auth && event.url.pathname.startsWith('/api/')) {
-		const m = /^Bearer\s+(\S+)$/i.exec(auth);
-		event.locals.station = m?.[1] ? await stationFromToken(m[1]) : null;
+	try {
+		event.locals.user = await userFromToken(event.cookies.get(SESSION_COOKIE));
+		// Stations authenticate with a bearer token on the API only; a browser never sends one.
+		const auth = event.request.headers.get('authorization');
+		if (auth && event.url.pathname.startsWith('/api/')) {
+			const m = /^Bearer\s+(\S+)$/i.exec(auth);
+			event.locals.station = m?.[1] ? await stationFromToken(m[1]) : null;
+		}
+	} catch (e) {
+		if (!isDatabaseUnavailable(e)) throw e;
+		if (event.url.pathname.startsWith('/api/')) return unavailableProblem();
+		// A page: SvelteKit renders +error.svelte only for errors raised inside a load or action,
+		// so the failed session lookup is raised again where the page first asks who is signed in
+		// (not "signed out", which would send people to the sign-in page while the database is away).
+		Object.defineProperty(event.locals, 'user', {
+			configurable: true,
+			get: () => {
+				throw e;
+			}
+		});
 	}
 	return resolve(event);
+};
+
+/**
+ * A database outage anywhere in a request (marked by handleError) answers 503 with Retry-After
+ * instead of 500: a problem document for the API, the error page for people.
+ */
+const databaseOutage: Handle = async ({ event, resolve }) => {
+	const response = await resolve(event);
+	if (response.status !== 500 || !event.locals.databaseUnavailable) return response;
+	if (event.url.pathname.startsWith('/api/')) return unavailableProblem();
+	const headers = new Headers(response.headers);
+	headers.set('retry-after', String(DATABASE_RETRY_AFTER_S));
+	return new Response(response.body, { status: 503, statusText: 'Service Unavailable', headers });
 };
 
 /**
@@ -60,10 +92,15 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
-export const handle = sequence(securityHeaders, apiProblems, authenticate);
+export const handle = sequence(securityHeaders, apiProblems, databaseOutage, authenticate);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message };
+	if (isDatabaseUnavailable(error)) {
+		event.locals.databaseUnavailable = true;
+		console.error(`[biasline] database unavailable on ${event.request.method} ${event.url.pathname}: ${error instanceof Error ? error.message : String(error)}`);
+		return { message: unavailableDetail, unavailable: true };
+	}
 	const errorId = randomUUID();
 	console.error(`[biasline] error ${errorId} on ${event.request.method} ${event.url.pathname}:`, error);
 	return { message: 'Something went wrong on our side. The error was logged.', errorId };

@@ -1,7 +1,9 @@
 // @ts-check
 // `npm test`: everything the tests need, then the tests. Unit and integration tests run in
 // vitest against a throwaway database on the private cluster; the browser tests run against the
-// built server on a second throwaway database. Extra arguments go to vitest (`npm test -- -t name`).
+// built server on a second throwaway database; the fault tests last, on app instances and a cluster
+// of their own (they kill and stop them). Extra arguments go to vitest (`npm test -- -t name`);
+// BIASLINE_TEST_STAGES=unit,e2e,faults picks stages (default: all three).
 import { spawn } from 'node:child_process';
 import { randomBytes } from 'node:crypto';
 import fs from 'node:fs';
@@ -22,6 +24,7 @@ import {
 } from './lib.mjs';
 
 const started = Date.now();
+const stages = new Set((process.env.BIASLINE_TEST_STAGES || 'unit,e2e,faults').split(',').map((x) => x.trim()));
 ensureDependencies();
 ensureDebianPackages([
 	{ bin: '/usr/bin/chromium', pkg: 'chromium' },
@@ -74,15 +77,42 @@ async function cleanup() {
 process.on('SIGINT', () => void cleanup().then(() => process.exit(130)));
 
 try {
-	say('unit and integration tests…');
-	const code1 = await vitestRun(['--project', 'unit', '--project', 'integration'], {
-		...baseEnv,
-		DATABASE_URL: cluster.url(dbUnit)
-	});
-	if (code1 !== 0) failed = true;
+	if (stages.has('unit')) {
+		say('unit and integration tests…');
+		const code1 = await vitestRun(['--project', 'unit', '--project', 'integration'], {
+			...baseEnv,
+			DATABASE_URL: cluster.url(dbUnit)
+		});
+		if (code1 !== 0) failed = true;
+	}
 
 	const buildDir = path.join(process.env.BIASLINE_DATA_DIR, 'build');
-	ensureBuild(buildDir);
+	if (stages.has('e2e') || stages.has('faults')) ensureBuild(buildDir);
+	if (stages.has('e2e')) await e2eStage(buildDir);
+	if (stages.has('faults')) {
+		// Last: these tests SIGKILL their own app instances and stop a PostgreSQL cluster of their own.
+		const faultsDir = path.join(process.env.BIASLINE_DATA_DIR, 'faults');
+		say(`fault tests (logs and their own cluster in ${path.relative(root, faultsDir)})…`);
+		const t0 = Date.now();
+		const code3 = await vitestRun(['--project', 'faults'], {
+			...baseEnv,
+			BIASLINE_FAULTS_BUILD_DIR: buildDir,
+			BIASLINE_FAULTS_DIR: faultsDir
+		});
+		say(`fault tests took ${Math.round((Date.now() - t0) / 1000)} s`);
+		if (code3 !== 0) failed = true;
+	}
+} catch (e) {
+	console.error(e);
+	failed = true;
+} finally {
+	await cleanup();
+}
+say(`${failed ? 'FAILED' : 'all tests passed'} in ${Math.round((Date.now() - started) / 1000)} s`);
+process.exit(failed ? 1 : 0);
+
+/** The HTTP and browser tests against two built instances on one database. @param {string} buildDir */
+async function e2eStage(buildDir) {
 	const port = await freePort();
 	const url = `http://127.0.0.1:${port}`;
 	// The built server mails through its own local test mail server, as under npm start.
@@ -120,11 +150,8 @@ try {
 		BIASLINE_E2E_ADMIN_PASSWORD: 'biasline-admin'
 	});
 	if (code2 !== 0) failed = true;
-} catch (e) {
-	console.error(e);
-	failed = true;
-} finally {
-	await cleanup();
+	// The fault tests that follow measure their own instances: free the machine's two cores.
+	await stopChild(server);
+	await stopChild(serverB);
+	server = serverB = null;
 }
-say(`${failed ? 'FAILED' : 'all tests passed'} in ${Math.round((Date.now() - started) / 1000)} s`);
-process.exit(failed ? 1 : 0);

@@ -16,6 +16,7 @@ class LiveHub {
 	#pulling = false;
 	#again = false;
 	#stopped = false;
+	#retries = 0;
 	#prune: ReturnType<typeof setInterval> | null = null;
 
 	get lastId(): number {
@@ -31,18 +32,44 @@ class LiveHub {
 	}
 
 	async #connect(): Promise<void> {
-		const client = new pg.Client({ connectionString: settings().DATABASE_URL });
-		client.on('notification', () => void this.#pull());
-		client.on('error', () => {
-			// The connection dropped (database restart): reconnect, then catch up from the log.
-			this.#client = null;
+		const client = new pg.Client({ connectionString: settings().DATABASE_URL, connectionTimeoutMillis: 3_000, keepAlive: true });
+		let lost = false;
+		const onLost = () => {
+			// The connection dropped (database stopped or restarted): reconnect, then catch up from the
+			// log. A failure while connecting is the caller's to retry (the catch below).
+			if (lost) return;
+			lost = true;
 			client.end().catch(() => {});
-			if (!this.#stopped) setTimeout(() => void this.#connect().catch(() => {}), 1000).unref();
-		});
-		await client.connect();
-		await client.query(`LISTEN ${EVENT_CHANNEL}`);
+			if (this.#client !== client) return;
+			this.#client = null;
+			this.#reconnectSoon();
+		};
+		client.on('notification', () => void this.#pull());
+		client.on('error', onLost);
+		client.on('end', onLost);
+		try {
+			await client.connect();
+			await client.query(`LISTEN ${EVENT_CHANNEL}`);
+		} catch (e) {
+			lost = true;
+			client.end().catch(() => {});
+			throw e;
+		}
+		if (lost) return;
 		this.#client = client;
+		this.#retries = 0;
 		void this.#pull();
+	}
+
+	/** Tries again after 0.5 s, doubling up to 5 s, until connected or stopped. */
+	#reconnectSoon(): void {
+		if (this.#stopped) return;
+		const delay = Math.min(500 * 2 ** this.#retries, 5_000);
+		this.#retries++;
+		setTimeout(() => {
+			if (this.#stopped || this.#client) return;
+			this.#connect().catch(() => this.#reconnectSoon());
+		}, delay).unref();
 	}
 
 	async #pull(): Promise<void> {
@@ -78,8 +105,9 @@ class LiveHub {
 		if (this.#prune) clearInterval(this.#prune);
 		for (const s of this.#subscribers) s.close();
 		this.#subscribers.clear();
-		this.#client?.end().catch(() => {});
+		const client = this.#client;
 		this.#client = null;
+		client?.end().catch(() => {});
 	}
 }
 
