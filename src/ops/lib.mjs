@@ -190,6 +190,7 @@ export async function ensureCluster(opts = {}) {
 		return capture(status.cmd, status.args).status === 0;
 	};
 	const start = async () => {
+		if (running()) return;
 		if (!(await portIsFree(port))) fail(`port ${port} of the private cluster is taken by another program`);
 		say(`starting PostgreSQL on 127.0.0.1:${port}…`);
 		const cmd = pgArgs(path.join(bin, 'pg_ctl'), ['-D', dir, '-l', path.join(dir, 'server.log'), '-w', '-t', '60', 'start']);
@@ -200,11 +201,8 @@ export async function ensureCluster(opts = {}) {
 		});
 		if (code !== 0) fail(`PostgreSQL did not start; see ${path.join(dir, 'server.log')}`);
 	};
-	let started = false;
-	if (!running()) {
-		await start();
-		started = true;
-	}
+	const started = !running();
+	if (started) await start();
 	const stop = () => {
 		const s = pgArgs(path.join(bin, 'pg_ctl'), ['-D', dir, '-m', 'fast', '-w', 'stop']);
 		capture(s.cmd, s.args, { cwd: '/' });
