@@ -8,8 +8,11 @@ export const NAV: readonly NavItem[] = [
 	{ href: '/lots', label: 'Lots', area: 'lots', hint: 'Yield, bins and disposition per lot' },
 	{ href: '/stations', label: 'Stations', area: 'stations', hint: 'Fixtures, calibrations and tokens' },
 	{ href: '/charts', label: 'Charts', area: 'charts', hint: 'Control charts by characteristic' },
+	{ href: '/uploads', label: 'Uploads', area: 'uploads', hint: 'Bench C–V files into a lot' },
 	{ href: '/alarms', label: 'Alarms', area: 'alarms', hint: 'Rule violations to act on' },
 	{ href: '/products', label: 'Products', area: 'products', hint: 'Parts and their spec plans' },
+	{ href: '/studies', label: 'Studies', area: 'studies', hint: 'Gauge studies and station correlation' },
+	{ href: '/audit', label: 'Audit', area: 'audit', hint: 'Every recorded change: who, when, before and after' },
 	{ href: '/admin', label: 'Admin', area: 'admin', hint: 'People and roles' }
 ];
 

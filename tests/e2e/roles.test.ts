@@ -13,6 +13,8 @@ const PAGES: [string, Who[]][] = [
 	['/account', ['admin', 'engineer', 'operator']],
 	['/charts', ['admin', 'engineer']],
 	['/products', ['admin', 'engineer']],
+	['/studies', ['admin', 'engineer']],
+	['/audit', ['admin', 'engineer']],
 	['/admin', ['admin']]
 ];
 

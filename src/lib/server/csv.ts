@@ -31,3 +31,8 @@ export function unitsCsv(units: UnitRow[]): string {
 	}
 	return lines.join('\r\n') + '\r\n';
 }
+
+/** CSV text of any table: a header row, then the rows, each cell quoted and guarded as above. */
+export function tableCsv(header: string[], rows: unknown[][]): string {
+	return [header, ...rows].map((r) => r.map(cell).join(',')).join('\r\n') + '\r\n';
+}

@@ -6,6 +6,7 @@ import { NewUserBody, SessionUserOut, SignInBody } from '$lib/schemas/people';
 import { LotBody, LotStatusBody, ProductBody, StationBody } from '$lib/schemas/setup';
 import { CalibrationBody, ResultsBody } from '$lib/schemas/station-api';
 import { AlarmChangeBody, AlarmsQuery, ChartQuery, ChartsQuery, RecomputeLimitsBody, UnitsQuery } from '$lib/schemas/query';
+import { AuditQuery, StudyBody, StudyPatchBody } from '$lib/schemas/studies';
 
 const Problem = z
 	.object({
@@ -287,6 +288,72 @@ function build() {
 			responses: { 200: { description: 'text/event-stream', content: { 'text/event-stream': { schema: z.string() } } }, ...problems(401, 404) }
 		});
 	}
+	// Measurement-system studies (engineer, admin) and the audit trail.
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/studies',
+		summary: 'Measurement-system studies, newest first, with their progress (engineer, admin)',
+		security: [{ session: [] }],
+		responses: { 200: ok('Studies', { studies: [{ id: 4, name: 'Line A after socket change', productCode: 'KV-1405', status: 'running', parts: 10, stations: ['A-01', 'A-02'], trials: 3, filled: 27, total: 60 }] }), ...problems(401, 403) }
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/studies',
+		summary: 'Create a draft study: parts (serial and lot), stations in place of appraisers, trials (engineer, admin; audited)',
+		security: [{ session: [] }],
+		request: jsonBody(StudyBody, {
+			productCode: 'KV-1405',
+			name: 'Line A after socket change',
+			parts: [
+				{ serial: 'LT-26-1187-A-01-000101', lot: 'LT-26-1187' },
+				{ serial: 'LT-26-1187-A-01-000102', lot: 'LT-26-1187' }
+			],
+			stations: ['A-01', 'A-02'],
+			trials: 3,
+			multiplier: 6
+		}),
+		responses: { 201: ok('Draft study'), ...problems(400, 401, 403) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/studies/{id}',
+		summary: 'A study: parts, stations, progress grid, and once every cell is filled the analysis per characteristic (ANOVA, average and range, station correlation, plot series, verdict)',
+		security: [{ session: [] }],
+		request: { params: z.object({ id: z.string() }) },
+		responses: { 200: ok('Study'), ...problems(400, 401, 403, 404) }
+	});
+	r.registerPath({
+		method: 'patch',
+		path: '/api/v1/studies/{id}',
+		summary: "Start a draft ('running') or finish a complete running study ('finished') (engineer, admin; audited)",
+		security: [{ session: [] }],
+		request: { params: z.object({ id: z.string() }), ...jsonBody(StudyPatchBody, { status: 'running' }) },
+		responses: { 200: ok('Changed study'), ...problems(400, 401, 403, 404, 409) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/studies/{id}/report.pdf',
+		summary: 'PDF report of a finished study (engineer, admin)',
+		security: [{ session: [] }],
+		request: { params: z.object({ id: z.string() }) },
+		responses: { 200: { description: 'application/pdf', content: { 'application/pdf': { schema: z.string() } } }, ...problems(400, 401, 403, 404, 409) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/audit',
+		summary: 'Audit entries, newest first, filtered by entity type, actor and time range, a page at a time (engineer, admin; read-only)',
+		security: [{ session: [] }],
+		request: { query: AuditQuery },
+		responses: { 200: ok('Audit entries', { total: 1, entries: [{ id: 7, at: '2026-03-02T07:15:00.000Z', actor: 'noor.haddad@corvane.example', entity: 'study', entityId: '4', action: 'start', before: { status: 'draft' }, after: { status: 'running' } }] }), ...problems(400, 401, 403) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/audit.csv',
+		summary: 'The same selection as CSV, oldest first (engineer, admin)',
+		security: [{ session: [] }],
+		request: { query: AuditQuery.omit({ limit: true, offset: true }) },
+		responses: { 200: { description: 'text/csv', content: { 'text/csv': { schema: z.string() } } }, ...problems(400, 401, 403) }
+	});
 	r.registerPath({
 		method: 'get',
 		path: '/api/v1/openapi.json',
