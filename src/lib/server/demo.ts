@@ -177,6 +177,8 @@ export async function seedDemo(dataDir: string): Promise<boolean> {
 			{ transaction: t }
 		);
 		await db().query("UPDATE users SET alarm_digest_minutes = 15 WHERE email = 'noor.haddad@corvane.example'", { transaction: t });
+		// The site named on lot certificates.
+		await db().query(`INSERT INTO meta (key, value) VALUES ('site-name', to_jsonb('Corvane Semiconductor, Halden works'::text)) ON CONFLICT (key) DO NOTHING`, { transaction: t });
 		await db().query("INSERT INTO meta (key, value) VALUES ('demo-seeded', to_jsonb(now()))", { transaction: t });
 	});
 	fs.mkdirSync(dataDir, { recursive: true });

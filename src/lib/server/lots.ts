@@ -14,6 +14,10 @@ export type LotRecord = {
 	disposition: 'pending' | 'held' | 'released';
 	openedAt: string;
 	closedAt: string | null;
+	/** Why the lot was last held or released, when, and by whom (null while pending). */
+	dispositionReason: string | null;
+	dispositionAt: string | null;
+	dispositionBy: string | null;
 };
 
 type Row = {
@@ -26,6 +30,9 @@ type Row = {
 	disposition: LotRecord['disposition'];
 	opened_at: Date;
 	closed_at: Date | null;
+	disposition_reason: string | null;
+	disposition_at: Date | null;
+	disposition_by_name: string | null;
 };
 
 const plain = (r: Row): LotRecord => ({
@@ -37,11 +44,15 @@ const plain = (r: Row): LotRecord => ({
 	status: r.status,
 	disposition: r.disposition,
 	openedAt: r.opened_at.toISOString(),
-	closedAt: r.closed_at ? r.closed_at.toISOString() : null
+	closedAt: r.closed_at ? r.closed_at.toISOString() : null,
+	dispositionReason: r.disposition_reason ?? null,
+	dispositionAt: r.disposition_at ? r.disposition_at.toISOString() : null,
+	dispositionBy: r.disposition_by_name ?? null
 });
 
 export async function getLot(number: string): Promise<LotRecord | null> {
-	const rows = await db().query<Row>('SELECT l.*, p.code FROM lots l JOIN products p ON p.id = l.product_id WHERE l.number = :number', {
+	const rows = await db().query<Row>(`SELECT l.*, p.code, u.name AS disposition_by_name FROM lots l JOIN products p ON p.id = l.product_id
+		 LEFT JOIN users u ON u.id = l.disposition_by WHERE l.number = :number`, {
 		replacements: { number },
 		type: QueryTypes.SELECT
 	});
@@ -84,6 +95,47 @@ export async function setLotStatus(actor: Actor, number: string, status: 'open' 
 	}
 	await audit(actor, 'lot', number, status === 'closed' ? 'close' : 'reopen', null, { status });
 	return { ok: true };
+}
+
+export type DispositionResult = { ok: true; lot: LotRecord } | { ok: false; status: 404 | 409; message: string };
+
+/**
+ * Holds or releases a lot with a reason (audited with the state before and after). A release needs
+ * a closed lot (testing finished) and refuses a lot already released; a hold refuses a lot already
+ * held. Holding does not stop testing: stations still post to an open held lot (only `closed`
+ * refuses results), so parts can be retested while the lot waits for its decision.
+ */
+export async function setDisposition(actor: Actor, number: string, disposition: 'held' | 'released', reason: string): Promise<DispositionResult> {
+	const outcome = await db().transaction(async (t): Promise<DispositionResult | null> => {
+		const rows = await db().query<{ id: string; status: string; disposition: string; disposition_reason: string | null }>(
+			'SELECT id, status, disposition, disposition_reason FROM lots WHERE number = :number FOR UPDATE',
+			{ replacements: { number }, type: QueryTypes.SELECT, transaction: t }
+		);
+		const row = rows[0];
+		if (!row) return { ok: false, status: 404, message: 'No such lot' };
+		if (row.disposition === disposition) return { ok: false, status: 409, message: `The lot is already ${disposition}` };
+		if (disposition === 'released' && row.status !== 'closed') {
+			return { ok: false, status: 409, message: 'Close the lot before releasing it: parts may still be tested into it' };
+		}
+		await db().query(
+			`UPDATE lots SET disposition = :disposition, disposition_reason = :reason, disposition_at = now(), disposition_by = :by WHERE id = :id`,
+			{ replacements: { id: row.id, disposition, reason, by: actor.userId }, transaction: t }
+		);
+		await audit(
+			actor,
+			'lot',
+			number,
+			disposition === 'held' ? 'hold' : 'release',
+			{ disposition: row.disposition, reason: row.disposition_reason },
+			{ disposition, reason },
+			t
+		);
+		return null;
+	});
+	if (outcome) return outcome;
+	const lot = await getLot(number);
+	if (!lot) throw new Error('lot vanished after its disposition');
+	return { ok: true, lot };
 }
 
 export type LotSummary = { lot: LotRecord; tested: number; passed: number; yieldPct: number | null; bins: Record<string, number> };

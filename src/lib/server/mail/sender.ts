@@ -8,14 +8,30 @@ import nodemailer from 'nodemailer';
 import { QueryTypes, type Transaction } from 'sequelize';
 import { db } from '../db';
 import { settings } from '../env';
+import { CertificateMailSchema, renderCertificateMail } from './certificate';
 import { MAX_ATTEMPTS } from './notify';
 import { renderAlarmMail } from './render';
 import { MailPayloadSchema } from './types';
 
-export type OutgoingMail = { from: string; to: string; subject: string; text: string; html: string; headers: Record<string, string> };
+export type OutgoingMail = {
+	from: string;
+	to: string;
+	subject: string;
+	text: string;
+	html: string;
+	headers: Record<string, string>;
+	attachments?: { filename: string; content: Buffer; contentType: string }[];
+};
 export type MailTransport = { sendMail(message: OutgoingMail): Promise<unknown>; close(): void };
 
-export type ClaimedRow = { id: number; toAddress: string; kind: 'alarm' | 'digest'; payload: unknown; attempts: number };
+export type ClaimedRow = {
+	id: number;
+	toAddress: string;
+	kind: 'alarm' | 'digest' | 'certificate';
+	payload: unknown;
+	attempts: number;
+	attachment: { filename: string; content: Buffer; contentType: string } | null;
+};
 
 /** Milliseconds to wait before the next try after `attempts` failures: 30 s doubling, at most 1 h. */
 export function retryDelayMs(attempts: number): number {
@@ -30,14 +46,59 @@ export function smtpTransport(url: string): MailTransport {
 
 /** Locks and returns up to `limit` due, unsent rows that no other transaction holds. */
 export async function claimDueMail(transaction: Transaction, now: Date, limit: number): Promise<ClaimedRow[]> {
-	const rows = await db().query<{ id: string; to_address: string; kind: 'alarm' | 'digest'; payload: unknown; attempts: number }>(
-		`SELECT id, to_address, kind, payload, attempts FROM mail_queue
+	const rows = await db().query<{
+		id: string;
+		to_address: string;
+		kind: ClaimedRow['kind'];
+		payload: unknown;
+		attempts: number;
+		attachment: Buffer | null;
+		attachment_name: string | null;
+		attachment_type: string | null;
+	}>(
+		`SELECT id, to_address, kind, payload, attempts, attachment, attachment_name, attachment_type FROM mail_queue
 		 WHERE sent_at IS NULL AND due_at <= :now AND attempts < :max
 		 ORDER BY due_at, id LIMIT :limit
 		 FOR UPDATE SKIP LOCKED`,
 		{ replacements: { now, max: MAX_ATTEMPTS, limit }, type: QueryTypes.SELECT, transaction }
 	);
-	return rows.map((r) => ({ id: Number(r.id), toAddress: r.to_address, kind: r.kind, payload: r.payload, attempts: r.attempts }));
+	return rows.map((r) => ({
+		id: Number(r.id),
+		toAddress: r.to_address,
+		kind: r.kind,
+		payload: r.payload,
+		attempts: r.attempts,
+		attachment: r.attachment ? { filename: r.attachment_name ?? 'attachment.bin', content: r.attachment, contentType: r.attachment_type ?? 'application/octet-stream' } : null
+	}));
+}
+
+/** What a claimed row sends: the rendered message, or why its payload cannot be sent. */
+function composeRow(row: ClaimedRow, from: string): { ok: true; mail: OutgoingMail } | { ok: false; error: string } {
+	if (row.kind === 'certificate') {
+		const parsed = CertificateMailSchema.safeParse(row.payload);
+		if (!parsed.success) return { ok: false, error: parsed.error.message };
+		if (!row.attachment) return { ok: false, error: 'certificate row without its attachment' };
+		const { subject, text, html } = renderCertificateMail(parsed.data);
+		return {
+			ok: true,
+			mail: { from, to: row.toAddress, subject, text, html, headers: { 'X-Biasline-Lot': parsed.data.lotNumber }, attachments: [row.attachment] }
+		};
+	}
+	const parsed = MailPayloadSchema.safeParse(row.payload);
+	if (!parsed.success) return { ok: false, error: parsed.error.message };
+	const { subject, text, html } = renderAlarmMail(parsed.data.alarms);
+	return {
+		ok: true,
+		mail: {
+			from,
+			to: row.toAddress,
+			subject,
+			text,
+			html,
+			// RFC 3834: an automatic message, so auto-responders stay quiet.
+			headers: { 'Auto-Submitted': 'auto-generated', 'X-Biasline-Alarms': parsed.data.alarms.map((a) => a.alarmId).join(' ') }
+		}
+	};
 }
 
 export type SendRound = { sent: number[]; failed: number[] };
@@ -53,27 +114,18 @@ export async function sendDueMail(transport: MailTransport, options: { from: str
 	await db().transaction(async (transaction) => {
 		const rows = await claimDueMail(transaction, now, options.limit ?? 10);
 		for (const row of rows) {
-			const parsed = MailPayloadSchema.safeParse(row.payload);
-			if (!parsed.success) {
+			const composed = composeRow(row, options.from);
+			if (!composed.ok) {
 				// Not worth retrying: the payload will not get better. Give up at once, keep the reason.
 				await db().query('UPDATE mail_queue SET attempts = :max, last_error = :err WHERE id = :id', {
-					replacements: { id: row.id, max: MAX_ATTEMPTS, err: `unreadable payload: ${parsed.error.message}`.slice(0, 1000) },
+					replacements: { id: row.id, max: MAX_ATTEMPTS, err: `unreadable payload: ${composed.error}`.slice(0, 1000) },
 					transaction
 				});
 				result.failed.push(row.id);
 				continue;
 			}
-			const { subject, text, html } = renderAlarmMail(parsed.data.alarms);
 			try {
-				await transport.sendMail({
-					from: options.from,
-					to: row.toAddress,
-					subject,
-					text,
-					html,
-					// RFC 3834: an automatic message, so auto-responders stay quiet.
-					headers: { 'Auto-Submitted': 'auto-generated', 'X-Biasline-Alarms': parsed.data.alarms.map((a) => a.alarmId).join(' ') }
-				});
+				await transport.sendMail(composed.mail);
 				await db().query('UPDATE mail_queue SET sent_at = now(), attempts = attempts + 1, last_error = NULL WHERE id = :id', {
 					replacements: { id: row.id },
 					transaction
