@@ -73,6 +73,16 @@ export interface StationInfo {
 	productCode: string | null;
 	/** Lot number if the server names one. */
 	lotNumber: string | null;
+	/** The running measurement-system study this station takes part in (null: none). */
+	study: StationStudy | null;
+}
+
+/** What `GET /api/v1/station` says about a running study: the part to measure next, or null when this station's share is done. */
+export interface StationStudy {
+	id: number;
+	productCode: string | null;
+	next: { serial: string; lot: string; trial: number } | null;
+	biasV: number[];
 }
 
 export interface CalibrationAnswer {
@@ -93,6 +103,8 @@ export interface ResultUnit {
 
 export interface ResultsBatch {
 	lot: string;
+	/** Set for a study's measurements (the server stores them apart from production). */
+	study?: number;
 	units: ResultUnit[];
 }
 
@@ -243,7 +255,19 @@ export function parseStationInfo(body: unknown): StationInfo | null {
 	const productCode =
 		str(product?.code) ?? str(body.plan && isRecord(body.plan) ? body.plan.productCode : undefined) ?? str(station.productCode) ?? str(lot?.productCode);
 	const lotNumber = str(lot?.number) ?? str(station.lot) ?? str(station.lotNumber);
-	return { station, fixture: parseFixture(body.fixture), calibration, plan, productCode, lotNumber };
+	return { station, fixture: parseFixture(body.fixture), calibration, plan, productCode, lotNumber, study: parseStudy(body.study) };
+}
+
+function parseStudy(x: unknown): StationStudy | null {
+	if (!isRecord(x)) return null;
+	const id = num(x.id);
+	if (id === null) return null;
+	const n = isRecord(x.next) ? x.next : null;
+	const serial = str(n?.serial);
+	const lot = str(n?.lot);
+	const trial = num(n?.trial);
+	const biasV = Array.isArray(x.biasV) ? x.biasV.map(num).filter((v): v is number => v !== null && v >= 0) : [];
+	return { id, productCode: str(x.productCode), next: serial !== null && lot !== null && trial !== null ? { serial, lot, trial } : null, biasV };
 }
 
 function parseCalibrationAnswer(body: unknown): CalibrationAnswer | null {

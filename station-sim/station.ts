@@ -3,7 +3,7 @@
  * posts them in batches, measures its reference part on a schedule, and misbehaves on request
  * (fault switches). Time and sleeping are injected so tests can run it on a virtual clock.
  */
-import { StationClient, abortableSleep, type Logger, type ResultUnit, type ResultsBatch, type StationInfo } from './client';
+import { StationClient, abortableSleep, type Logger, type ResultUnit, type ResultsBatch, type StationInfo, type StationStudy } from './client';
 import {
 	DEFAULT_BIAS_POINTS_V,
 	REFERENCE_CAPACITORS_F,
@@ -296,6 +296,10 @@ export class Station {
 					continue;
 				}
 			}
+			if (this.#info?.study?.next) {
+				await this.#measureStudyPart(this.#info.study);
+				continue;
+			}
 			const batch = this.#testBatch();
 			await this.#sleep(Math.max(0, this.#nextPartMs - this.#now()), this.#deps.signal);
 			if (this.#stopped) break;
@@ -450,6 +454,49 @@ export class Station {
 		if (refEveryParts !== null && this.#partsSinceRef >= refEveryParts) return true;
 		if (refEveryMin !== null && this.#nextPartMs - this.#lastRefMs >= refEveryMin * 60_000) return true;
 		return false;
+	}
+
+	/**
+	 * Measures the study part the server named and posts it with `study`, then asks for the next.
+	 * The part is drawn from the seed, its lot and its serial only, so every station (and every
+	 * trial) measures the same simulated part: only the readings' noise differs, as on a real line.
+	 */
+	async #measureStudyPart(study: StationStudy): Promise<void> {
+		const next = study.next;
+		if (!next) return;
+		const model = modelForProduct(study.productCode ?? this.config.product, null);
+		const seed = String(this.config.seed);
+		const lotParams = sampleLotParams(model, createRng(`${seed}|lot|${next.lot}|${model.code}`));
+		const part = samplePart(model, lotParams, createRng(`${seed}|study-part|${next.serial}`));
+		const periodMs = 1000 / Math.max(1e-6, this.config.rate);
+		this.#nextPartMs = Math.max(this.#nextPartMs, this.#now()) + periodMs;
+		await this.#sleep(Math.max(0, this.#nextPartMs - this.#now()), this.#deps.signal);
+		if (this.#stopped) return;
+		if (this.#needsCalibration()) await this.#calibrate();
+		const biases = study.biasV.length > 0 ? study.biasV : this.#biasPointsV;
+		const elapsedMin = (this.#now() - this.#startMs) / 60_000;
+		const measured = measureUnit(
+			model,
+			part,
+			biases,
+			{
+				fixture: this.#fixtureNow(),
+				temperatureC: ambientTemperatureC(elapsedMin, this.#noiseRng),
+				frequencyNoisePpm: (this.config.frequencyNoisePpm ?? 5) * this.#noiseFactor(),
+				bandwidthNoisePct: (this.config.bandwidthNoisePct ?? 1.5) * this.#noiseFactor()
+			},
+			this.#noiseRng
+		);
+		if (!measured.ok) {
+			this.#error(measured.error.message);
+			await this.#sleep(2000, this.#deps.signal);
+			return;
+		}
+		const batch: ResultsBatch = { lot: next.lot, study: study.id, units: [{ serial: next.serial, testedAt: new Date(this.#now()).toISOString(), kind: 'production', ...round(measured.value) }] };
+		this.#stats.posted += 1;
+		await this.#deliver({ body: batch, key: this.#deps.uuid ? this.#deps.uuid() : crypto.randomUUID(), units: 1, malformed: false });
+		// The server decides the next cell (and says when the study is no longer running).
+		await this.#refresh();
 	}
 
 	/** Tests the next batch of parts, advancing the part schedule by 1/rate per part. */
