@@ -27,6 +27,7 @@ export type Area =
 	| 'products'
 	| 'products.manage'
 	| 'admin'
+	| 'uploads'
 	| 'account';
 
 const ALL: readonly Role[] = ROLES;
@@ -48,7 +49,9 @@ export const ACCESS: Record<Area, readonly Role[]> = {
 	products: ENGINEERS,
 	'products.manage': ENGINEERS,
 	admin: ['admin'],
-	account: ALL
+	account: ALL,
+	/** Bench C–V files into a lot (engineers: bench parts count in the lot's yield). */
+	uploads: ENGINEERS
 };
 
 /** True when the role may use the area. Assumes a role already validated as one of ROLES. */

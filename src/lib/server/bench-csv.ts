@@ -10,8 +10,8 @@
 import { z } from 'zod';
 
 /** Largest file accepted (bytes) and most data rows (our choice: a few lots' worth of bench parts). */
-export const BENCH_MAX_BYTES = 5 * 1024 * 1024;
-export const BENCH_MAX_ROWS = 100_000;
+export const BENCH_MAX_BYTES = 2 * 1024 * 1024; // = the server's BODY_SIZE_LIMIT (2M)
+export const BENCH_MAX_ROWS = 50_000;
 export const BENCH_MAX_POINTS_PER_PART = 64;
 
 export const BENCH_COLUMNS = ['serial', 'biasV', 'capacitanceF', 'q', 'leakageA', 'temperatureC', 'testedAt'] as const;

@@ -5,6 +5,7 @@ import { z } from 'zod';
 import { NewUserBody, SessionUserOut, SignInBody } from '$lib/schemas/people';
 import { LotBody, LotStatusBody, ProductBody, StationBody } from '$lib/schemas/setup';
 import { CalibrationBody, ResultsBody } from '$lib/schemas/station-api';
+import { UploadQuery } from '$lib/schemas/uploads';
 import { AlarmChangeBody, AlarmsQuery, ChartQuery, ChartsQuery, RecomputeLimitsBody, UnitsQuery } from '$lib/schemas/query';
 import { AuditQuery, StudyBody, StudyPatchBody } from '$lib/schemas/studies';
 
@@ -354,6 +355,53 @@ function build() {
 		request: { query: AuditQuery.omit({ limit: true, offset: true }) },
 		responses: { 200: { description: 'text/csv', content: { 'text/csv': { schema: z.string() } } }, ...problems(400, 401, 403) }
 	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/units/{id}',
+		summary: 'One tested part (SI): sweep, fit, bin and failures, the plan windows and the calibration used',
+		security: [{ session: [] }],
+		request: { params: z.object({ id: z.number().int() }) },
+		responses: { 200: ok('The part', { part: { id: 1, serial: 'LT-26-1187-0001', kind: 'production', bin: 1, pass: true, sweep: [{ biasV: 1, resonanceHz: 2.71e6, bandwidthHz: null, capacitanceF: 3.1e-11, q: null }] } }), ...problems(401, 403, 404) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/uploads',
+		summary: 'Bench files imported lately',
+		security: [{ session: [] }],
+		responses: { 200: ok('Uploads', { uploads: [] }), ...problems(401, 403) }
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/uploads',
+		summary: 'Check a bench C–V file (CSV: serial,biasV,capacitanceF[,q][,leakageA][,temperatureC][,testedAt]) for a lot and stage it; any bad row stores nothing',
+		security: [{ session: [] }],
+		request: {
+			query: UploadQuery,
+			body: { content: { 'text/csv': { schema: z.string(), example: 'serial,biasV,capacitanceF\nB-0001,1,3.02e-11\nB-0001,4,1.81e-11\n' } } }
+		},
+		responses: {
+			201: ok('Staged: preview, parts and their bins', { upload: { id: 7, lot: 'LT-26-1187', fileName: 'bench.csv', status: 'staged', rows: 2, parts: 1 }, bins: [{ bin: 1, count: 1 }] }),
+			...problems(400, 401, 403, 404, 409, 413, 415)
+		}
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/uploads/{id}',
+		summary: 'One upload: staged or imported',
+		security: [{ session: [] }],
+		request: { params: z.object({ id: z.number().int() }) },
+		responses: { 200: ok('The upload'), ...problems(401, 403, 404) }
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/uploads/{id}/import',
+		summary: 'Import a staged upload as bench parts in one transaction; NDJSON progress lines, the last one after the commit',
+		security: [{ session: [] }],
+		request: { params: z.object({ id: z.number().int() }) },
+		responses: { 200: { description: 'application/x-ndjson', content: { 'application/x-ndjson': { schema: z.string() } } }, ...problems(401, 403, 404, 409) }
+	});
+	// The lot page: parts table, hold and release, matched sets, certificate.
+	const lotParam = z.object({ number: z.string() });
 	r.registerPath({
 		method: 'get',
 		path: '/api/v1/openapi.json',
