@@ -107,6 +107,24 @@ describe('live stream', () => {
 		expect(replay.every((e) => e.id > lastSeen)).toBe(true);
 	});
 
+	test('the yield event counts the lot and the station’s rolling window including the batch’s failures', async () => {
+		// A fresh line, so the expected counts are ours alone: 4 good parts, then 2 good and 2 far
+		// below the 20–35 pF window at 1 V (0.2× the test junction's 26.5 pF is 5.3 pF).
+		const own = await setUpLine({ prefix: 'STY', biases: [1, 4], plan: { points: [{ biasV: 1, minF: 20 * pF, maxF: 35 * pF }, { biasV: 4 }] } });
+		await own.post([own.part(), own.part(), own.part(), own.part()]);
+		const events = await collect(`/api/v1/stream?lot=${own.lotNumber}`, {
+			onOpen: async () => {
+				const answer = await own.post([own.part(), own.part(-0.8), own.part(), own.part(-0.8)]);
+				expect(answer.results.map((r) => r.pass)).toEqual([true, false, true, false]);
+			},
+			until: (es) => es.some((e) => e.event === 'yield')
+		});
+		const y = events.find((e) => e.event === 'yield')?.data;
+		expect(y).toMatchObject({ lot: own.lotNumber, station: own.stationName, lotTested: 8, lotPassed: 6, stationWindow: 8 });
+		expect(y?.lotYieldPct).toBeCloseTo(75, 12);
+		expect(y?.stationYieldPct).toBeCloseTo(75, 12);
+	});
+
 	test('an unknown lot in ?lot= is a 404', async () => {
 		const unknown = await fetch(`${baseUrl()}/api/v1/stream?lot=NO-SUCH-LOT`, { headers: { cookie } });
 		expect(unknown.status).toBe(404);

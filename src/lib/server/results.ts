@@ -1,18 +1,16 @@
 // Station ingest: a batch of tested units judged and stored in one transaction, with
 // idempotency keys so a retried post is answered from the stored answer and stored once.
 import { createHash } from 'node:crypto';
-import { QueryTypes, type Transaction } from 'sequelize';
+import { QueryTypes } from 'sequelize';
 import { evaluateUnit } from '$lib/measure';
-import type { SpecFailure, SpecPlan } from '$lib/measure/types';
+import type { Arrangement, SpecFailure, SpecPlan } from '$lib/measure/types';
 import type { ResultsBodyInput } from '$lib/schemas/station-api';
 import type { StationPrincipal } from './auth';
-import { calibrationInForceAt } from './calibrations';
 import { db } from './db';
-import { getLot } from './lots';
-import { publish, type NewEvent } from './events';
+import { EVENT_CHANNEL, publish, type NewEvent } from './events';
 import { queueAlarmMail } from './mail/notify';
-import { chartBatch, type OpenedAlarm, type SpcUnit } from './spc';
-import { getStation } from './stations';
+import { chartWork, chartWriteCtes, createAndLockCharts, LOCK_CHARTS_SQL, openBatchAlarms, stepCharts, type ChartRow, type OpenedAlarm, type SpcUnit } from './spc';
+import { ingestStudyBatch } from './studies';
 
 export type UnitAnswer = {
 	serial: string;
@@ -35,14 +33,6 @@ export function requestHash(rawBody: string): string {
 
 type StoredKey = { request_hash: string; status: number; response: { results: UnitAnswer[] } };
 
-async function storedKey(stationId: number, key: string): Promise<StoredKey | null> {
-	const rows = await db().query<StoredKey>('SELECT request_hash, status, response FROM idempotency_keys WHERE station_id = :stationId AND key = :key', {
-		replacements: { stationId, key },
-		type: QueryTypes.SELECT
-	});
-	return rows[0] ?? null;
-}
-
 function replayOf(stored: StoredKey, hash: string): IngestOutcome {
 	if (stored.request_hash !== hash) {
 		return { ok: false, status: 409, kind: 'idempotency-conflict', detail: 'This Idempotency-Key was used with another body' };
@@ -50,23 +40,69 @@ function replayOf(stored: StoredKey, hash: string): IngestOutcome {
 	return { ok: true, status: 200, replayed: true, body: stored.response, alarms: [] };
 }
 
-type PlanRow = { id: string; version: number; plan: SpecPlan; created_at: Date };
+type PlanRow = { id: number; version: number; plan: SpecPlan; created_at: string };
 
 /** The plan version in force at a time: the newest created at or before it (else the first). */
 function planAt(versions: PlanRow[], at: Date): PlanRow | undefined {
 	let chosen: PlanRow | undefined;
-	for (const v of versions) if (v.created_at <= at && (!chosen || v.version > chosen.version)) chosen = v;
+	for (const v of versions) if (new Date(v.created_at) <= at && (!chosen || v.version > chosen.version)) chosen = v;
 	return chosen ?? versions.reduce<PlanRow | undefined>((a, v) => (!a || v.version < a.version ? v : a), undefined);
 }
 
 const answerFailures = (fs: SpecFailure[]) => fs.map(({ test, value, low, high }) => ({ test, value, low, high }));
 
+/** Everything a post needs to know before judging, read in one statement. */
+type IngestContext = {
+	stored: StoredKey | null;
+	station: {
+		id: number;
+		name: string;
+		line_id: number | null;
+		line: string | null;
+		inductance_h: number;
+		stray_f: number;
+		blocking_f: number | null;
+		arrangement: Arrangement;
+	} | null;
+	calibration: { id: number; inductance_h: number; stray_f: number; valid_until: string } | null;
+	lot: { id: number; number: string; product_id: number; code: string; status: string; plans: PlanRow[] | null } | null;
+};
+
+async function ingestContext(stationId: number, key: string, lotNumber: string): Promise<IngestContext> {
+	const rows = await db().query<IngestContext>(
+		`SELECT
+		   (SELECT json_build_object('request_hash', k.request_hash, 'status', k.status, 'response', k.response)
+		      FROM idempotency_keys k WHERE k.station_id = $1 AND k.key = $2) AS stored,
+		   (SELECT json_build_object('id', s.id, 'name', s.name, 'line_id', s.line_id, 'line', ln.name, 'inductance_h', s.inductance_h,
+		           'stray_f', s.stray_f, 'blocking_f', s.blocking_f, 'arrangement', s.arrangement)
+		      FROM stations s LEFT JOIN lines ln ON ln.id = s.line_id WHERE s.id = $1) AS station,
+		   (SELECT json_build_object('id', c.id, 'inductance_h', c.inductance_h, 'stray_f', c.stray_f, 'valid_until', c.valid_until)
+		      FROM calibrations c WHERE c.station_id = $1 ORDER BY c.at DESC, c.id DESC LIMIT 1) AS calibration,
+		   (SELECT json_build_object('id', l.id, 'number', l.number, 'product_id', l.product_id, 'code', p.code, 'status', l.status,
+		           'plans', (SELECT json_agg(json_build_object('id', v.id, 'version', v.version, 'plan', v.plan, 'created_at', v.created_at))
+		                     FROM plan_versions v WHERE v.product_id = l.product_id))
+		      FROM lots l JOIN products p ON p.id = l.product_id WHERE l.number = $3) AS lot`,
+		{ bind: [stationId, key, lotNumber], type: QueryTypes.SELECT }
+	);
+	const row = rows[0];
+	if (!row) throw new Error('the context statement returned no row');
+	return row;
+}
+
 class KeyTaken extends Error {}
 class LotClosed extends Error {}
+
+/** Parts a station's rolling yield looks back over (our choice: a few minutes of a busy station). */
+export const ROLLING_YIELD_PARTS = 200;
 
 /**
  * Judges and stores a batch for a station. Assumes the body passed ResultsBody. Refusals store
  * nothing; an accepted batch is committed before this returns.
+ *
+ * The common path costs one read before judging and three statements in the transaction: claim
+ * the key with the lot check and the chart locks; (rules stepped in memory); one statement that
+ * writes the parts, chart points, charts, bin counters, station, events and the notification.
+ * A batch that opens alarms adds their statements and a separate events write.
  */
 export async function ingestResults(
 	principal: StationPrincipal,
@@ -76,24 +112,22 @@ export async function ingestResults(
 	now: Date,
 	origin: string
 ): Promise<IngestOutcome> {
-	const earlier = await storedKey(principal.id, key);
-	if (earlier) return replayOf(earlier, hash);
-
-	const station = await getStation(principal.id);
+	// A measurement-system study's batch: its own checks and storage (kind 'study', no charts, no yield).
+	if (body.study !== undefined) return ingestStudyBatch(principal, key, hash, body, now);
+	const ctx = await ingestContext(principal.id, key, body.lot);
+	if (ctx.stored) return replayOf(ctx.stored, hash);
+	const station = ctx.station;
 	if (!station) return { ok: false, status: 404, kind: 'not-found', detail: 'Station not found' };
-	const calibration = await calibrationInForceAt(station.id, now);
+	const calibration = ctx.calibration && new Date(ctx.calibration.valid_until) > now ? ctx.calibration : null;
 	if (!calibration) {
 		return { ok: false, status: 409, kind: 'calibration-required', detail: 'No calibration in force for this station: calibrate, then post again' };
 	}
-	const lot = await getLot(body.lot);
+	const lot = ctx.lot;
 	if (!lot) return { ok: false, status: 404, kind: 'lot-not-found', detail: `No lot ${body.lot}`, errors: [{ path: 'lot', message: 'unknown lot' }] };
 	if (lot.status !== 'open') {
 		return { ok: false, status: 409, kind: 'lot-closed', detail: `Lot ${lot.number} is closed`, errors: [{ path: 'lot', message: 'lot is closed' }] };
 	}
-	const versions = await db().query<PlanRow>('SELECT id, version, plan, created_at FROM plan_versions WHERE product_id = :pid', {
-		replacements: { pid: lot.productId },
-		type: QueryTypes.SELECT
-	});
+	const versions = lot.plans ?? [];
 
 	const judgeStart = performance.now();
 	const answers: UnitAnswer[] = [];
@@ -108,9 +142,9 @@ export async function ingestResults(
 			return;
 		}
 		const evaluated = evaluateUnit({
-			arrangement: station.fixture.arrangement,
-			blockingF: station.fixture.blockingF,
-			calibration: { inductanceH: calibration.inductanceH, strayF: calibration.strayF },
+			arrangement: station.arrangement,
+			blockingF: station.blocking_f,
+			calibration: { inductanceH: calibration.inductance_h, strayF: calibration.stray_f },
 			plan: version.plan,
 			unit: { points: unit.points, leakageA: unit.leakageA, temperatureC: unit.temperatureC }
 		});
@@ -124,7 +158,7 @@ export async function ingestResults(
 		records.push({
 			lot_id: lot.id,
 			station_id: station.id,
-			plan_version_id: Number(version.id),
+			plan_version_id: version.id,
 			calibration_id: calibration.id,
 			serial: unit.serial,
 			kind: unit.kind,
@@ -150,65 +184,128 @@ export async function ingestResults(
 
 	const judgeMs = performance.now() - judgeStart;
 	const response = { results: answers };
+	// The chart work refers to these objects; their ids are filled in once drawn.
+	const spcUnits: SpcUnit[] = charted.map((c) => ({ ...c, id: 0 }));
+	const work = chartWork(spcUnits);
+	const production = records.filter((r) => r.kind === 'production');
 	let alarms: OpenedAlarm[] = [];
 	let spcMs = 0;
 	try {
 		await db().transaction(async (t) => {
-			// Claim the key first: a concurrent post with the same key waits here until this
-			// transaction ends, then finds the key taken and replays the stored answer.
-			const claimed = await db().query(
-				`INSERT INTO idempotency_keys (station_id, key, request_hash, status, response) VALUES (:sid, :key, :hash, 201, :response)
-				 ON CONFLICT DO NOTHING RETURNING key`,
-				{ replacements: { sid: station.id, key, hash, response: JSON.stringify(response) }, type: QueryTypes.SELECT, transaction: t }
+			// One statement: claim the key (a concurrent post with the same key waits here until
+			// this transaction ends, then finds it taken and replays), check the lot is still open,
+			// draw the parts' ids, and lock the batch's charts in id order. The select list is
+			// evaluated left to right, so the key is claimed before any chart is locked.
+			const [first] = await db().query<{ claimed: string; open: string; ids: string[]; charts: ChartRow[] | null }>(
+				`WITH claim AS (
+				   INSERT INTO idempotency_keys (station_id, key, request_hash, status, response) VALUES ($1, $2, $3, 201, CAST($4 AS jsonb))
+				   ON CONFLICT DO NOTHING RETURNING 1)
+				 SELECT (SELECT count(*) FROM claim) AS claimed,
+				   (SELECT count(*) FROM (SELECT 1 FROM lots WHERE id = $5 AND status = 'open' FOR SHARE) o) AS open,
+				   ARRAY(SELECT nextval('units_id_seq') FROM generate_series(1, $6)) AS ids,
+				   (SELECT json_agg(c) FROM (${LOCK_CHARTS_SQL.replace(/\$1/g, '$7').replace(/\$2/g, '$8').replace(/\$3/g, '$9')}) c) AS charts`,
+				{
+					bind: [station.id, key, hash, JSON.stringify(response), lot.id, records.length, station.id, lot.product_id, JSON.stringify(work.specs)],
+					type: QueryTypes.SELECT,
+					transaction: t
+				}
 			);
-			if (claimed.length === 0) throw new KeyTaken();
-			const open = await db().query("SELECT 1 FROM lots WHERE id = :id AND status = 'open' FOR SHARE", {
-				replacements: { id: lot.id },
-				type: QueryTypes.SELECT,
-				transaction: t
-			});
-			if (open.length === 0) throw new LotClosed();
-			// Ids drawn first, so each stored part is known to its chart points without relying
-			// on the order of RETURNING rows.
-			const ids = await db().query<{ id: string }>("SELECT nextval('units_id_seq') AS id FROM generate_series(1, :n)", {
-				replacements: { n: records.length },
-				type: QueryTypes.SELECT,
-				transaction: t
-			});
-			records.forEach((r, i) => (r.id = Number(ids[i]?.id)));
-			// One statement for the whole batch: the rows travel as one JSON parameter.
-			await db().query(
-				`INSERT INTO units (id, lot_id, station_id, plan_version_id, calibration_id, serial, kind, tested_at, temperature_c, leakage_a,
-				   bin, pass, bias_v, resonance_hz, bandwidth_hz, capacitance_f, q, cj0_f, vj_v, m, cp_f, fit_rms_pct, failures)
-				 SELECT id, lot_id, station_id, plan_version_id, calibration_id, serial, kind, tested_at, temperature_c, leakage_a,
-				   bin, pass, bias_v, resonance_hz, bandwidth_hz, capacitance_f, q, cj0_f, vj_v, m, cp_f, fit_rms_pct, failures
-				 FROM jsonb_to_recordset(CAST(:rows AS jsonb)) AS x(id bigint, lot_id bigint, station_id bigint, plan_version_id bigint, calibration_id bigint,
-				   serial text, kind text, tested_at timestamptz, temperature_c float8, leakage_a float8, bin smallint, pass boolean,
-				   bias_v float8[], resonance_hz float8[], bandwidth_hz float8[], capacitance_f float8[], q float8[],
-				   cj0_f float8, vj_v float8, m float8, cp_f float8, fit_rms_pct float8, failures jsonb)`,
-				{ replacements: { rows: JSON.stringify(records) }, transaction: t }
-			);
+			if (!first || Number(first.claimed) === 0) throw new KeyTaken();
+			if (Number(first.open) === 0) throw new LotClosed();
+			records.forEach((r, i) => (r.id = Number(first.ids[i])));
+			spcUnits.forEach((u, i) => (u.id = Number(records[i]?.id)));
 			const spcStart = performance.now();
-			alarms = await chartBatch(
-				t,
-				station.id,
-				lot.productId,
-				charted.map((c, i) => ({ ...c, id: Number(records[i]?.id) }))
-			);
+			let rows = first.charts ?? [];
+			if (rows.length < work.specs.length) rows = await createAndLockCharts(t, station.id, lot.product_id, work);
+			const writes = await stepCharts(t, rows, work);
 			spcMs = performance.now() - spcStart;
-			const counted = records.filter((r) => r.kind === 'production');
-			if (counted.length) {
-				const perBin = new Map<number, number>();
-				for (const r of counted) perBin.set(Number(r.bin), (perBin.get(Number(r.bin)) ?? 0) + 1);
-				await db().query(
-					`INSERT INTO lot_bin_counts (lot_id, bin, n) SELECT :lotId, bin, n FROM jsonb_to_recordset(CAST(:rows AS jsonb)) AS x(bin smallint, n bigint)
-					 ON CONFLICT (lot_id, bin) DO UPDATE SET n = lot_bin_counts.n + EXCLUDED.n`,
-					{ replacements: { lotId: lot.id, rows: JSON.stringify([...perBin].map(([bin, n]) => ({ bin, n }))) }, transaction: t }
-				);
+
+			const perBin = new Map<number, number>();
+			for (const r of production) perBin.set(Number(r.bin), (perBin.get(Number(r.bin)) ?? 0) + 1);
+			const unitEvents = records.map((r) => ({
+				type: 'unit',
+				station_id: station.id,
+				lot_id: lot.id,
+				payload: { serial: r.serial, lot: lot.number, station: station.name, bin: r.bin, pass: r.pass, testedAt: r.tested_at, kind: r.kind }
+			}));
+			// With no alarm to open, the events go out in the same statement as the parts.
+			const eventsHere = writes.pending.length === 0;
+			const [written] = await db().query<{ lot_tested: string; lot_passed: string; window_n: string; window_passed: string }>(
+				`WITH u AS (
+				   INSERT INTO units (id, lot_id, station_id, plan_version_id, calibration_id, serial, kind, tested_at, temperature_c, leakage_a,
+				     bin, pass, bias_v, resonance_hz, bandwidth_hz, capacitance_f, q, cj0_f, vj_v, m, cp_f, fit_rms_pct, failures)
+				   SELECT id, lot_id, station_id, plan_version_id, calibration_id, serial, kind, tested_at, temperature_c, leakage_a,
+				     bin, pass, bias_v, resonance_hz, bandwidth_hz, capacitance_f, q, cj0_f, vj_v, m, cp_f, fit_rms_pct, failures
+				   FROM jsonb_to_recordset(CAST($1 AS jsonb)) AS x(id bigint, lot_id bigint, station_id bigint, plan_version_id bigint, calibration_id bigint,
+				     serial text, kind text, tested_at timestamptz, temperature_c float8, leakage_a float8, bin smallint, pass boolean,
+				     bias_v float8[], resonance_hz float8[], bandwidth_hz float8[], capacitance_f float8[], q float8[],
+				     cj0_f float8, vj_v float8, m float8, cp_f float8, fit_rms_pct float8, failures jsonb)),
+				 ${chartWriteCtes({ points: '$2', charts: '$3', limits: '$4' }).join(',\n')},
+				 bins AS (
+				   INSERT INTO lot_bin_counts (lot_id, bin, n) SELECT $5, bin, n FROM jsonb_to_recordset(CAST($6 AS jsonb)) AS x(bin smallint, n bigint)
+				   ON CONFLICT (lot_id, bin) DO UPDATE SET n = lot_bin_counts.n + EXCLUDED.n RETURNING bin, n),
+				 st AS (UPDATE stations SET last_seen_at = $7, current_lot_id = $5 WHERE id = $8),
+				 -- The lot's counters after this batch: the upserted bins as returned, the others as read.
+				 lot_now AS (
+				   SELECT bin, n FROM bins
+				   UNION ALL SELECT b.bin, b.n FROM lot_bin_counts b WHERE b.lot_id = $5 AND NOT EXISTS (SELECT 1 FROM bins WHERE bins.bin = b.bin)),
+				 -- The station's rolling window: this batch's production parts, then the stored ones.
+				 recent AS (
+				   SELECT pass FROM (
+				     SELECT id, pass FROM (SELECT id, pass FROM units WHERE station_id = $8 AND kind = 'production' ORDER BY id DESC LIMIT $9) o
+				     UNION ALL SELECT id, pass FROM jsonb_to_recordset(CAST($1 AS jsonb)) AS n(id bigint, pass boolean, kind text) WHERE n.kind = 'production'
+				   ) w ORDER BY id DESC LIMIT $9),
+				 figures AS (
+				   SELECT (SELECT coalesce(sum(n), 0) FROM lot_now) AS lot_tested, (SELECT coalesce(sum(n) FILTER (WHERE bin = 1), 0) FROM lot_now) AS lot_passed,
+				     (SELECT count(*) FROM recent) AS window_n, (SELECT count(*) FILTER (WHERE pass) FROM recent) AS window_passed),
+				 ev AS (
+				   INSERT INTO events (type, station_id, lot_id, payload)
+				   SELECT type, station_id, lot_id, payload FROM jsonb_to_recordset(CAST($10 AS jsonb)) AS x(type text, station_id bigint, lot_id bigint, payload jsonb)
+				   WHERE CAST($11 AS boolean)
+				   UNION ALL
+				   SELECT 'yield', $8, $5, jsonb_build_object('station', CAST($12 AS text), 'lot', CAST($13 AS text), 'lotTested', f.lot_tested, 'lotPassed', f.lot_passed,
+				     'lotYieldPct', CASE WHEN f.lot_tested > 0 THEN CAST(100.0 * f.lot_passed / f.lot_tested AS float8) END,
+				     'stationYieldPct', CASE WHEN f.window_n > 0 THEN CAST(100.0 * f.window_passed / f.window_n AS float8) END, 'stationWindow', f.window_n)
+				   FROM figures f WHERE CAST($11 AS boolean) AND CAST($14 AS boolean)
+				   RETURNING id)
+				 SELECT f.*, (SELECT pg_notify('${EVENT_CHANNEL}', CAST(max(id) AS text)) FROM ev HAVING count(*) > 0) AS notified FROM figures f`,
+				{
+					bind: [
+						JSON.stringify(records),
+						JSON.stringify(writes.points),
+						JSON.stringify(writes.charts),
+						JSON.stringify(writes.limits),
+						lot.id,
+						JSON.stringify([...perBin].map(([bin, n]) => ({ bin, n }))),
+						now,
+						station.id,
+						ROLLING_YIELD_PARTS,
+						JSON.stringify(unitEvents),
+						eventsHere,
+						station.name,
+						lot.number,
+						production.length > 0
+					],
+					type: QueryTypes.SELECT,
+					transaction: t
+				}
+			);
+			if (eventsHere) return;
+			const opened = await openBatchAlarms(t, station.id, writes);
+			alarms = opened;
+			const events: NewEvent[] = unitEvents.map((e) => ({ type: 'unit', stationId: station.id, lotId: lot.id, payload: e.payload }));
+			if (production.length && written) events.push(yieldEvent(station.name, lot.number, station.id, lot.id, written));
+			for (const a of opened) {
+				events.push({
+					type: 'alarm',
+					stationId: station.id,
+					lotId: lot.id,
+					payload: { id: a.alarmId, rule: a.rule, chart: a.characteristic, kind: a.kind, station: station.name, lot: lot.number, status: 'open', suspect: a.suspect, description: a.description }
+				});
 			}
-			await publish(t, await batchEvents(t, station.id, station.name, lot.id, lot.number, records, alarms));
+			await publish(t, events);
 			// Queued in this transaction: the mail exists exactly when the alarm does.
-			for (const a of alarms) {
+			for (const a of opened) {
 				await queueAlarmMail(
 					{
 						alarmId: a.alarmId,
@@ -216,10 +313,10 @@ export async function ingestResults(
 						ruleDescription: a.description,
 						chart: `${a.characteristic}${a.kind === 'reference' ? ' (reference part)' : ''}`,
 						stationName: station.name,
-						lineId: station.lineId,
+						lineId: station.line_id === null ? null : Number(station.line_id),
 						lineName: station.line,
-						productId: lot.productId,
-						productCode: lot.productCode,
+						productId: lot.product_id,
+						productCode: lot.code,
 						lotNumber: lot.number,
 						suspect: a.suspect,
 						reasoning: a.reasoning,
@@ -229,15 +326,11 @@ export async function ingestResults(
 					{ transaction: t, now }
 				);
 			}
-			await db().query('UPDATE stations SET last_seen_at = :now, current_lot_id = :lotId WHERE id = :id', {
-				replacements: { now, lotId: lot.id, id: station.id },
-				transaction: t
-			});
 		});
 	} catch (e) {
 		if (e instanceof KeyTaken) {
-			const stored = await storedKey(station.id, key);
-			if (stored) return replayOf(stored, hash);
+			const again = await ingestContext(principal.id, key, body.lot);
+			if (again.stored) return replayOf(again.stored, hash);
 		}
 		if (e instanceof LotClosed) return { ok: false, status: 409, kind: 'lot-closed', detail: `Lot ${lot.number} is closed` };
 		throw e;
@@ -245,63 +338,31 @@ export async function ingestResults(
 	return { ok: true, status: 201, replayed: false, body: response, alarms, timings: { judgeMs, spcMs } };
 }
 
-
-/** Parts a station's rolling yield looks back over (our choice: a few minutes of a busy station). */
-export const ROLLING_YIELD_PARTS = 200;
-
-/** The live events of an accepted batch: each part, the changed yield figures, new alarms. */
-async function batchEvents(
-	t: Transaction,
-	stationId: number,
+/** The yield event of a batch from the figures its write statement returned. */
+function yieldEvent(
 	stationName: string,
-	lotId: number,
 	lotNumber: string,
-	records: Record<string, unknown>[],
-	alarms: OpenedAlarm[]
-): Promise<NewEvent[]> {
-	const events: NewEvent[] = records.map((r) => ({
-		type: 'unit',
+	stationId: number,
+	lotId: number,
+	f: { lot_tested: string; lot_passed: string; window_n: string; window_passed: string }
+): NewEvent {
+	const lotTested = Number(f.lot_tested);
+	const lotPassed = Number(f.lot_passed);
+	const window = Number(f.window_n);
+	return {
+		type: 'yield',
 		stationId,
 		lotId,
-		payload: { serial: r.serial, lot: lotNumber, station: stationName, bin: r.bin, pass: r.pass, testedAt: r.tested_at, kind: r.kind }
-	}));
-	if (records.some((r) => r.kind === 'production')) {
-		const [lotRow] = await db().query<{ tested: string; passed: string }>(
-			'SELECT coalesce(sum(n), 0) AS tested, coalesce(sum(n) FILTER (WHERE bin = 1), 0) AS passed FROM lot_bin_counts WHERE lot_id = :lotId',
-			{ replacements: { lotId }, type: QueryTypes.SELECT, transaction: t }
-		);
-		const [stRow] = await db().query<{ tested: string; passed: string }>(
-			`SELECT count(*) AS tested, count(*) FILTER (WHERE pass) AS passed FROM
-			   (SELECT pass FROM units WHERE station_id = :stationId AND kind = 'production' ORDER BY id DESC LIMIT :n) x`,
-			{ replacements: { stationId, n: ROLLING_YIELD_PARTS }, type: QueryTypes.SELECT, transaction: t }
-		);
-		const lotTested = Number(lotRow?.tested ?? 0);
-		const lotPassed = Number(lotRow?.passed ?? 0);
-		const window = Number(stRow?.tested ?? 0);
-		events.push({
-			type: 'yield',
-			stationId,
-			lotId,
-			payload: {
-				station: stationName,
-				lot: lotNumber,
-				lotTested,
-				lotPassed,
-				lotYieldPct: lotTested ? (100 * lotPassed) / lotTested : null,
-				stationYieldPct: window ? (100 * Number(stRow?.passed ?? 0)) / window : null,
-				stationWindow: window
-			}
-		});
-	}
-	for (const a of alarms) {
-		events.push({
-			type: 'alarm',
-			stationId,
-			lotId,
-			payload: { id: a.alarmId, rule: a.rule, chart: a.characteristic, kind: a.kind, station: stationName, lot: lotNumber, status: 'open', suspect: a.suspect, description: a.description }
-		});
-	}
-	return events;
+		payload: {
+			station: stationName,
+			lot: lotNumber,
+			lotTested,
+			lotPassed,
+			lotYieldPct: lotTested ? (100 * lotPassed) / lotTested : null,
+			stationYieldPct: window ? (100 * Number(f.window_passed)) / window : null,
+			stationWindow: window
+		}
+	};
 }
 
 /** Forgets idempotency keys older than the retention (stations retry within minutes, not days). */

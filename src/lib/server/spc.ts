@@ -5,16 +5,11 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import { biasLabel } from '$lib/measure/spec';
 import type { SpecPlan } from '$lib/measure/types';
 import { computeBaseline, initialRuleState, step, type ChartRuleLimits, type RuleId, type RuleState, type Violation } from '$lib/spc';
-import { ALL_RULE_IDS } from '$lib/spc/types';
+import { ALL_RULE_IDS, DEFAULT_RULE_IDS } from '$lib/spc/types';
 import { db } from './db';
 
-/**
- * Rules on by default: WE1 (a point beyond 3 sigma) and WE4 (eight in a row on one side, the
- * drift detector) — our choice. Every added rule raises the false-alarm rate of an in-control
- * process, and a product charts several correlated characteristics; a plan can name more in
- * `spc.rules`.
- */
-export const DEFAULT_RULES: readonly RuleId[] = ['WE1', 'WE4'];
+/** Rules on when a plan names none (see DEFAULT_RULE_IDS); a plan can name others in `spc.rules`. */
+export const DEFAULT_RULES: readonly RuleId[] = DEFAULT_RULE_IDS;
 /** Reference parts are measured rarely; our choice: their charts freeze after 10 points. */
 export const DEFAULT_REFERENCE_BASELINE = 10;
 const DEFAULT_BASELINE = 30;
@@ -64,6 +59,12 @@ export function characteristicsOf(plan: SpecPlan): Characteristic[] {
 	return out;
 }
 
+/** The plan's EWMA and CUSUM parameters for a baseline (the domain's documented defaults when unset). */
+export function chartParameters(plan: SpecPlan) {
+	const s = plan.spc;
+	return { ewmaLambda: s?.ewmaLambda, ewmaLimitWidthSigma: s?.ewmaLimitWidthSigma, cusumReferenceK: s?.cusumReferenceK, cusumDecisionH: s?.cusumDecisionH };
+}
+
 function rulesOf(plan: SpecPlan): RuleId[] {
 	const wanted = plan.spc?.rules;
 	if (!wanted) return [...DEFAULT_RULES];
@@ -75,7 +76,7 @@ function baselineOf(plan: SpecPlan, kind: ChartKind): number {
 	return kind === 'reference' ? (spc?.referenceBaselineParts ?? DEFAULT_REFERENCE_BASELINE) : (spc?.baselineParts ?? DEFAULT_BASELINE);
 }
 
-type ChartRow = {
+export type ChartRow = {
 	id: string;
 	kind: ChartKind;
 	characteristic: string;
@@ -101,53 +102,72 @@ export type OpenedAlarm = {
 
 type Pending = { violation: Violation; chart: ChartRow; unit: SpcUnit; seq: number };
 
-/**
- * Charts the units of one accepted batch (same station and product) inside its transaction.
- * Returns the alarms this batch opened (not the ones it only extended).
- */
-export async function chartBatch(t: Transaction, stationId: number, productId: number, units: SpcUnit[]): Promise<OpenedAlarm[]> {
-	const charted = units.filter((u): u is SpcUnit & { kind: ChartKind } => u.kind === 'production' || u.kind === 'reference');
-	if (charted.length === 0) return [];
-	// Which charts this batch touches, and the values per chart in the batch's order.
-	const work = new Map<string, { kind: ChartKind; characteristic: string; unit: string; items: { unit: SpcUnit; value: number }[] }>();
-	for (const u of charted) {
+/** The charts one batch touches and its values per chart, in the batch's order. */
+export type ChartWork = {
+	specs: { kind: ChartKind; characteristic: string; unit: string }[];
+	items: Map<string, { unit: SpcUnit; value: number }[]>;
+};
+
+/** What a batch adds to its charts, ready for one write with the batch's parts. */
+export type ChartWrites = {
+	points: Record<string, unknown>[];
+	charts: ChartRow[];
+	limits: Record<string, unknown>[];
+	pending: Pending[];
+};
+
+/** Sorts a batch's charted values by chart (production and reference parts only). */
+export function chartWork(units: SpcUnit[]): ChartWork {
+	const items = new Map<string, { unit: SpcUnit; value: number }[]>();
+	const specs: ChartWork['specs'] = [];
+	for (const u of units) {
+		if (u.kind !== 'production' && u.kind !== 'reference') continue;
 		for (const c of characteristicsOf(u.plan)) {
 			const value = c.value(u);
 			if (value === null) continue;
 			const key = `${u.kind}|${c.name}`;
-			const entry = work.get(key) ?? { kind: u.kind, characteristic: c.name, unit: c.unit, items: [] };
-			entry.items.push({ unit: u, value });
-			work.set(key, entry);
+			let list = items.get(key);
+			if (!list) {
+				list = [];
+				items.set(key, list);
+				specs.push({ kind: u.kind, characteristic: c.name, unit: c.unit });
+			}
+			list.push({ unit: u, value });
 		}
 	}
-	if (work.size === 0) return [];
-	const specs = [...work.values()].map((w) => ({ kind: w.kind, characteristic: w.characteristic, unit: w.unit }));
-	const lockCharts = () =>
-		// Locked in id order, so two posts touching the same charts cannot deadlock.
-		db().query<ChartRow>(
-			`SELECT c.id, c.kind, c.characteristic, c.status, c.point_count, c.limits, c.limits_version, c.rule_state
-			 FROM charts c JOIN jsonb_to_recordset(CAST(:specs AS jsonb)) AS x(kind text, characteristic text) ON x.kind = c.kind AND x.characteristic = c.characteristic
-			 WHERE c.station_id = :stationId AND c.product_id = :productId ORDER BY c.id FOR UPDATE OF c`,
-			{ replacements: { stationId, productId, specs: JSON.stringify(specs) }, type: QueryTypes.SELECT, transaction: t }
-		);
-	// Usually every chart exists already: one round trip. New charts are created, then locked.
-	let rows = await lockCharts();
-	if (rows.length < specs.length) {
-		await db().query(
-			`INSERT INTO charts (station_id, product_id, kind, characteristic, unit)
-			 SELECT :stationId, :productId, kind, characteristic, unit FROM jsonb_to_recordset(CAST(:specs AS jsonb)) AS x(kind text, characteristic text, unit text)
-			 ON CONFLICT DO NOTHING`,
-			{ replacements: { stationId, productId, specs: JSON.stringify(specs) }, transaction: t }
-		);
-		rows = await lockCharts();
-	}
-	const points: Record<string, unknown>[] = [];
-	const limitRows: Record<string, unknown>[] = [];
-	const pending: Pending[] = [];
+	return { specs, items };
+}
+
+/**
+ * The statement that locks a batch's chart rows, in id order so two posts touching the same
+ * charts cannot deadlock. Parameters: $1 station id, $2 product id, $3 the specs as JSON.
+ */
+export const LOCK_CHARTS_SQL = `SELECT c.id, c.kind, c.characteristic, c.status, c.point_count, c.limits, c.limits_version, c.rule_state
+	 FROM charts c JOIN jsonb_to_recordset(CAST($3 AS jsonb)) AS x(kind text, characteristic text) ON x.kind = c.kind AND x.characteristic = c.characteristic
+	 WHERE c.station_id = $1 AND c.product_id = $2 ORDER BY c.id FOR UPDATE OF c`;
+
+/** Creates the charts a batch needs that do not exist yet, and locks them all (a chart's first parts only). */
+export async function createAndLockCharts(t: Transaction, stationId: number, productId: number, work: ChartWork): Promise<ChartRow[]> {
+	const specs = JSON.stringify(work.specs);
+	await db().query(
+		`INSERT INTO charts (station_id, product_id, kind, characteristic, unit)
+		 SELECT $1, $2, kind, characteristic, unit FROM jsonb_to_recordset(CAST($3 AS jsonb)) AS x(kind text, characteristic text, unit text)
+		 ON CONFLICT DO NOTHING`,
+		{ bind: [stationId, productId, specs], transaction: t }
+	);
+	return db().query<ChartRow>(LOCK_CHARTS_SQL, { bind: [stationId, productId, specs], type: QueryTypes.SELECT, transaction: t });
+}
+
+/**
+ * Steps every locked chart's rules over the batch's values (the rule engine's bounded state, so
+ * the work is set by the rule windows, not the history) and freezes baselines that fill up.
+ */
+export async function stepCharts(t: Transaction, rows: ChartRow[], work: ChartWork): Promise<ChartWrites> {
+	const out: ChartWrites = { points: [], charts: rows, limits: [], pending: [] };
 	for (const chart of rows) {
-		const w = work.get(`${chart.kind}|${chart.characteristic}`);
-		if (!w) continue;
-		for (const { unit, value } of w.items) {
+		const list = work.items.get(`${chart.kind}|${chart.characteristic}`);
+		if (!list) continue;
+		for (const { unit, value } of list) {
 			const seq = chart.point_count;
 			let fired: Violation[] = [];
 			if (chart.status === 'active' && chart.limits && chart.rule_state) {
@@ -157,38 +177,42 @@ export async function chartBatch(t: Transaction, stationId: number, productId: n
 					fired = r.value.violations;
 				}
 			}
-			points.push({ chart_id: chart.id, seq, unit_id: unit.id, value, at: unit.testedAt, limits_version: chart.limits_version, rules: fired.map((v) => v.ruleId) });
-			for (const violation of fired) pending.push({ violation, chart, unit, seq });
+			out.points.push({ chart_id: chart.id, seq, unit_id: unit.id, value, at: unit.testedAt, limits_version: chart.limits_version, rules: fired.map((v) => v.ruleId) });
+			for (const violation of fired) out.pending.push({ violation, chart, unit, seq });
 			chart.point_count++;
 			if (chart.status === 'baseline' && chart.point_count >= baselineOf(unit.plan, chart.kind)) {
-				await freezeBaseline(t, chart, baselineOf(unit.plan, chart.kind), points, limitRows);
+				await freezeBaseline(t, chart, unit.plan, baselineOf(unit.plan, chart.kind), out.points, out.limits);
 			}
 		}
 	}
-	if (limitRows.length) {
-		await db().query(
-			`INSERT INTO chart_limits (chart_id, version, limits, from_seq, to_seq, reason)
-			 SELECT chart_id, version, limits, from_seq, to_seq, reason FROM jsonb_to_recordset(CAST(:rows AS jsonb))
-			   AS x(chart_id bigint, version integer, limits jsonb, from_seq integer, to_seq integer, reason text)`,
-			{ replacements: { rows: JSON.stringify(limitRows) }, transaction: t }
-		);
-	}
-	// The new points and the charts' new state in one statement (one round trip).
-	await db().query(
-		`WITH pts AS (
-		   INSERT INTO chart_points (chart_id, seq, unit_id, value, at, limits_version, rules)
-		   SELECT chart_id, seq, unit_id, value, at, limits_version, rules FROM jsonb_to_recordset(CAST(:points AS jsonb))
-		     AS x(chart_id bigint, seq integer, unit_id bigint, value float8, at timestamptz, limits_version integer, rules text[]))
-		 UPDATE charts c SET status = x.status, point_count = x.point_count, limits = x.limits, limits_version = x.limits_version, rule_state = x.rule_state
-		 FROM jsonb_to_recordset(CAST(:rows AS jsonb)) AS x(id bigint, status text, point_count integer, limits jsonb, limits_version integer, rule_state jsonb)
-		 WHERE c.id = x.id`,
-		{ replacements: { points: JSON.stringify(points), rows: JSON.stringify(rows) }, transaction: t }
-	);
-	return openAlarms(t, stationId, pending);
+	return out;
+}
+
+/**
+ * The parts of the batch's one write statement that store chart points, limits and the charts'
+ * new state (CTEs named pts, lim, chs). Parameters: $P points, $C charts, $L limits as JSON.
+ */
+export function chartWriteCtes(p: { points: string; charts: string; limits: string }): string[] {
+	return [
+		`pts AS (INSERT INTO chart_points (chart_id, seq, unit_id, value, at, limits_version, rules)
+		   SELECT chart_id, seq, unit_id, value, at, limits_version, rules FROM jsonb_to_recordset(CAST(${p.points} AS jsonb))
+		     AS x(chart_id bigint, seq integer, unit_id bigint, value float8, at timestamptz, limits_version integer, rules text[]))`,
+		`lim AS (INSERT INTO chart_limits (chart_id, version, limits, from_seq, to_seq, reason)
+		   SELECT chart_id, version, limits, from_seq, to_seq, reason FROM jsonb_to_recordset(CAST(${p.limits} AS jsonb))
+		     AS x(chart_id bigint, version integer, limits jsonb, from_seq integer, to_seq integer, reason text))`,
+		`chs AS (UPDATE charts c SET status = x.status, point_count = x.point_count, limits = x.limits, limits_version = x.limits_version, rule_state = x.rule_state
+		   FROM jsonb_to_recordset(CAST(${p.charts} AS jsonb)) AS x(id bigint, status text, point_count integer, limits jsonb, limits_version integer, rule_state jsonb)
+		   WHERE c.id = x.id)`
+	];
+}
+
+/** Opens (or extends) the alarms of a batch's violations; returns the ones it opened. */
+export function openBatchAlarms(t: Transaction, stationId: number, writes: ChartWrites): Promise<OpenedAlarm[]> {
+	return writes.pending.length ? openAlarms(t, stationId, writes.pending) : Promise.resolve([]);
 }
 
 /** Freezes a chart's limits from its first `n` points (stored ones plus this batch's). */
-async function freezeBaseline(t: Transaction, chart: ChartRow, n: number, batchPoints: Record<string, unknown>[], limitRows: Record<string, unknown>[]) {
+async function freezeBaseline(t: Transaction, chart: ChartRow, plan: SpecPlan, n: number, batchPoints: Record<string, unknown>[], limitRows: Record<string, unknown>[]) {
 	const stored = await db().query<{ value: number }>('SELECT value FROM chart_points WHERE chart_id = :id ORDER BY seq LIMIT :n', {
 		replacements: { id: chart.id, n },
 		type: QueryTypes.SELECT,
@@ -196,7 +220,7 @@ async function freezeBaseline(t: Transaction, chart: ChartRow, n: number, batchP
 	});
 	const fresh = batchPoints.filter((p) => p.chart_id === chart.id).map((p) => Number(p.value));
 	const values = [...stored.map((s) => s.value), ...fresh].slice(0, n);
-	const baseline = computeBaseline(values, { baselineParts: n });
+	const baseline = computeBaseline(values, { baselineParts: n, ...chartParameters(plan) });
 	// A baseline without spread (sigma 0) cannot set limits; the chart keeps collecting.
 	if (!baseline.ok) return;
 	chart.status = 'active';

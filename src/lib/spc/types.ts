@@ -75,6 +75,13 @@ export const ALL_RULE_IDS = [...ZONE_RULE_IDS, 'EWMA', 'CUSUM+', 'CUSUM-'] as co
 export type ZoneRuleId = (typeof ZONE_RULE_IDS)[number];
 export type RuleId = (typeof ALL_RULE_IDS)[number];
 
+/**
+ * Rules on when a plan names none: WE1 (a point beyond 3 sigma) and WE4 (eight in a row on one
+ * side, the drift detector) — our choice. Every added rule raises the false-alarm rate of an
+ * in-control process, and a product charts several correlated characteristics.
+ */
+export const DEFAULT_RULE_IDS: readonly RuleId[] = ['WE1', 'WE4'];
+
 export interface Violation {
 	readonly ruleId: RuleId;
 	/** Index of the point that completes the pattern (the last point of the run). */
