@@ -50,7 +50,19 @@ export type SpecPlan = {
 	matching?: { setSize: number; tolerancePct: number };
 	bins?: Partial<Record<SpecTestCategory, number>>;
 	/** Control charts: baseline sizes and the rule ids enabled (see $lib/spc); the server uses them. */
-	spc?: { baselineParts?: number; referenceBaselineParts?: number; rules?: string[]; subgroupSize?: number; pChartParts?: number };
+	spc?: {
+		baselineParts?: number;
+		referenceBaselineParts?: number;
+		rules?: string[];
+		subgroupSize?: number;
+		pChartParts?: number;
+		/** EWMA weight λ and limit width L (in sigma of the EWMA statistic). */
+		ewmaLambda?: number;
+		ewmaLimitWidthSigma?: number;
+		/** CUSUM reference value k and decision interval h, in sigma. */
+		cusumReferenceK?: number;
+		cusumDecisionH?: number;
+	};
 };
 
 /** One failed test; value null when the quantity could not be obtained at all. */

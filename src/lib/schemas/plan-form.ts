@@ -28,9 +28,23 @@ export type PlanFormValues = {
 	fit: { maxRmsPct: string };
 	matching: { setSize: string; tolerancePct: string };
 	bins: Record<BinCategory, string>;
-	spc: { baselineParts: string };
+	spc: {
+		baselineParts: string;
+		referenceBaselineParts: string;
+		subgroupSize: string;
+		pChartParts: string;
+		ewmaLambda: string;
+		ewmaLimitWidthSigma: string;
+		cusumReferenceK: string;
+		cusumDecisionH: string;
+		/** The rule ids ticked (form inputs `spc.rule.WE1` …). */
+		rules: string[];
+	};
 	note: string;
 };
+
+/** The values used when a control-chart field is left empty (shown as placeholders). */
+export type SpcDefaults = Record<Exclude<keyof PlanFormValues['spc'], 'rules'>, number>;
 
 /** Form errors keyed by input name (`points.2.minPF`), `_` for the form as a whole. */
 export type FormErrors = Record<string, string>;

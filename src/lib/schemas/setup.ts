@@ -31,7 +31,11 @@ export const SpecPlanSchema = z
 				referenceBaselineParts: z.number().int().min(2).max(1000).optional(),
 				rules: z.array(z.enum(ALL_RULE_IDS)).max(ALL_RULE_IDS.length).optional(),
 				subgroupSize: z.number().int().min(2).max(25).optional(),
-				pChartParts: z.number().int().min(10).max(10_000).optional()
+				pChartParts: z.number().int().min(10).max(10_000).optional(),
+				ewmaLambda: z.number({ error: 'EWMA weight must be a number' }).gt(0, { error: 'EWMA weight must be above 0' }).max(1, { error: 'EWMA weight is at most 1' }).optional(),
+				ewmaLimitWidthSigma: z.number().min(1, { error: 'EWMA limit width is at least 1 sigma' }).max(6, { error: 'EWMA limit width is at most 6 sigma' }).optional(),
+				cusumReferenceK: z.number().gt(0, { error: 'CUSUM k must be above 0' }).max(3, { error: 'CUSUM k is at most 3 sigma' }).optional(),
+				cusumDecisionH: z.number().min(1, { error: 'CUSUM h is at least 1 sigma' }).max(20, { error: 'CUSUM h is at most 20 sigma' }).optional()
 			})
 			.optional()
 	})

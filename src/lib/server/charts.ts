@@ -20,6 +20,7 @@ import {
 } from '$lib/spc';
 import { audit, type Actor } from './audit';
 import { db } from './db';
+import { chartParameters } from './spc';
 
 export const CHART_VIEWS = ['imr', 'xbar-r', 'xbar-s', 'ewma', 'cusum', 'p'] as const;
 export type ChartView = (typeof CHART_VIEWS)[number];
@@ -268,8 +269,10 @@ export async function recomputeLimits(
 	input: { fromSeq: number; toSeq: number; exclusions: { seq: number; reason: string }[]; reason: string }
 ): Promise<RecomputeResult> {
 	return db().transaction(async (t) => {
-		const rows = await db().query<{ id: string; limits: ChartRuleLimits | null; limits_version: number; point_count: number }>(
-			'SELECT id, limits, limits_version, point_count FROM charts WHERE id = :id FOR UPDATE',
+		const rows = await db().query<{ id: string; limits: ChartRuleLimits | null; limits_version: number; point_count: number; plan: SpecPlan | null }>(
+			`SELECT id, limits, limits_version, point_count,
+			   (SELECT v.plan FROM plan_versions v WHERE v.product_id = charts.product_id ORDER BY v.version DESC LIMIT 1) AS plan
+			 FROM charts WHERE id = :id FOR UPDATE`,
 			{ replacements: { id: chartId }, type: QueryTypes.SELECT, transaction: t }
 		);
 		const chart = rows[0];
@@ -289,7 +292,8 @@ export async function recomputeLimits(
 		}
 		const baseline = computeBaseline(
 			pts.map((p) => p.value),
-			{ selection: { fromIndex: 0, toIndex: pts.length, exclusions } }
+			// The product's current EWMA and CUSUM parameters apply to the new limits.
+			{ selection: { fromIndex: 0, toIndex: pts.length, exclusions }, ...(chart.plan ? chartParameters(chart.plan) : {}) }
 		);
 		if (!baseline.ok) return { ok: false as const, status: 400 as const, message: baseline.error.message };
 		const version = chart.limits_version + 1;

@@ -125,3 +125,48 @@ describe('station form', () => {
 		expect(r.errors.name).toBe('Enter a station name');
 	});
 });
+
+describe('plan form: control-chart settings', () => {
+	test('an empty form keeps the default rules as no choice and stores no spc block', () => {
+		const r = parsePlanForm(form([['1', '20', '30'], ['4', '', '']]));
+		expect(r.ok).toBe(true);
+		if (r.ok) expect(r.plan.spc).toBeUndefined();
+	});
+
+	test('subgroup size, EWMA and CUSUM parameters and a chosen rule set are stored, and read back as typed', () => {
+		const v = form([['1', '20', '30'], ['4', '', '']]);
+		v.spc = { ...v.spc, subgroupSize: '4', pChartParts: '100', ewmaLambda: '0,1', ewmaLimitWidthSigma: '2.7', cusumReferenceK: '0.5', cusumDecisionH: '4', rules: ['WE1', 'WE2', 'N3', 'CUSUM+'] };
+		const r = parsePlanForm(v);
+		expect(r.ok).toBe(true);
+		if (!r.ok) return;
+		expect(r.plan.spc).toEqual({ subgroupSize: 4, pChartParts: 100, ewmaLambda: 0.1, ewmaLimitWidthSigma: 2.7, cusumReferenceK: 0.5, cusumDecisionH: 4, rules: ['WE1', 'WE2', 'N3', 'CUSUM+'] });
+		const back = planToValues(r.plan);
+		expect(back.spc).toMatchObject({ subgroupSize: '4', ewmaLambda: '0.1', rules: ['WE1', 'WE2', 'N3', 'CUSUM+'] });
+	});
+
+	test('a plan set through the API keeps its rules through an edit in the form (nothing silently dropped)', () => {
+		const plan: SpecPlan = { points: [{ biasV: 1, minF: 20 * pF, maxF: 30 * pF }, { biasV: 4 }], spc: { baselineParts: 50, rules: ['WE1', 'N2'], subgroupSize: 3 } };
+		const r = parsePlanForm(planToValues(plan));
+		expect(r.ok).toBe(true);
+		if (r.ok) expect(r.plan.spc).toEqual({ baselineParts: 50, rules: ['WE1', 'N2'], subgroupSize: 3 });
+	});
+
+	test('out-of-range settings are reported beside their fields', () => {
+		const v = form([['1', '20', '30'], ['4', '', '']]);
+		v.spc = { ...v.spc, subgroupSize: '1', ewmaLambda: '1.5', cusumDecisionH: 'x' };
+		const r = parsePlanForm(v);
+		expect(r.ok).toBe(false);
+		if (r.ok) return;
+		expect(Object.keys(r.errors)).toEqual(expect.arrayContaining(['spc.subgroupSize', 'spc.ewmaLambda', 'spc.cusumDecisionH']));
+	});
+
+	test('the posted form: ticked boxes are the rules; a form without the boxes keeps the defaults', async () => {
+		const { planValuesFromForm } = await import('./plan-form');
+		const ticked = planValuesFromForm({ 'points.0.biasV': '1', 'spc.rules': 'ticked', 'spc.rule.WE1': 'on', 'spc.rule.N7': 'on' });
+		expect(ticked.spc.rules).toEqual(['WE1', 'N7']);
+		const none = planValuesFromForm({ 'points.0.biasV': '1', 'spc.rules': 'ticked' });
+		expect(none.spc.rules).toEqual([]);
+		const legacy = planValuesFromForm({ 'points.0.biasV': '1' });
+		expect(legacy.spc.rules).toEqual(['WE1', 'WE4']);
+	});
+});

@@ -5,6 +5,16 @@ import type { SpecPlan } from '$lib/measure/types';
 import { DEFAULT_BINS, validateSpecPlan } from '$lib/measure/spec';
 import { BIN_CATEGORIES, type FormErrors, type PlanFormValues, type PointValues, type StationFormValues } from '$lib/schemas/plan-form';
 import { SpecPlanSchema, StationBody } from '$lib/schemas/setup';
+import {
+	DEFAULT_BASELINE_PARTS,
+	DEFAULT_CUSUM_DECISION_H,
+	DEFAULT_CUSUM_REFERENCE_K,
+	DEFAULT_EWMA_LAMBDA,
+	DEFAULT_EWMA_LIMIT_WIDTH_SIGMA
+} from '$lib/spc/charts';
+import { ALL_RULE_IDS, DEFAULT_RULE_IDS } from '$lib/spc/types';
+import { DEFAULT_P_CHART_PARTS, DEFAULT_SUBGROUP_SIZE } from './charts';
+import { DEFAULT_REFERENCE_BASELINE } from './spc';
 import type { CalibrationPolicy, Fixture } from './stations';
 
 const PF = 1e-12;
@@ -41,13 +51,40 @@ export function planToValues(plan: SpecPlan | null, rows = 8): PlanFormValues {
 		fit: { maxRmsPct: show(plan?.fit?.maxRmsPct) },
 		matching: { setSize: show(plan?.matching?.setSize), tolerancePct: show(plan?.matching?.tolerancePct) },
 		bins,
-		spc: { baselineParts: show(plan?.spc?.baselineParts) },
+		spc: {
+			baselineParts: show(plan?.spc?.baselineParts),
+			referenceBaselineParts: show(plan?.spc?.referenceBaselineParts),
+			subgroupSize: show(plan?.spc?.subgroupSize),
+			pChartParts: show(plan?.spc?.pChartParts),
+			ewmaLambda: show(plan?.spc?.ewmaLambda),
+			ewmaLimitWidthSigma: show(plan?.spc?.ewmaLimitWidthSigma),
+			cusumReferenceK: show(plan?.spc?.cusumReferenceK),
+			cusumDecisionH: show(plan?.spc?.cusumDecisionH),
+			rules: [...(plan?.spc?.rules ?? DEFAULT_RULE_IDS)]
+		},
 		note: ''
 	};
 }
 
 /** The placeholders the editor shows for bins and SPC (what applies when left empty). */
-export const PLAN_DEFAULTS = { bins: { ...DEFAULT_BINS }, baselineParts: 30 } as const;
+export const PLAN_DEFAULTS = {
+	bins: { ...DEFAULT_BINS },
+	baselineParts: DEFAULT_BASELINE_PARTS,
+	spc: {
+		baselineParts: DEFAULT_BASELINE_PARTS,
+		referenceBaselineParts: DEFAULT_REFERENCE_BASELINE,
+		subgroupSize: DEFAULT_SUBGROUP_SIZE,
+		pChartParts: DEFAULT_P_CHART_PARTS,
+		ewmaLambda: DEFAULT_EWMA_LAMBDA,
+		ewmaLimitWidthSigma: DEFAULT_EWMA_LIMIT_WIDTH_SIGMA,
+		cusumReferenceK: DEFAULT_CUSUM_REFERENCE_K,
+		cusumDecisionH: DEFAULT_CUSUM_DECISION_H
+	}
+} as const;
+
+/** The SPC number fields of the editor, in the plan's own names. */
+export const SPC_NUMBER_FIELDS = ['baselineParts', 'referenceBaselineParts', 'subgroupSize', 'pChartParts', 'ewmaLambda', 'ewmaLimitWidthSigma', 'cusumReferenceK', 'cusumDecisionH'] as const;
+const SPC_WHOLE = new Set<string>(['baselineParts', 'referenceBaselineParts', 'subgroupSize', 'pChartParts']);
 
 /** Reads the editor's inputs out of a flat form object (`points.3.biasV`, `ratio.min`, …). */
 export function planValuesFromForm(form: Record<string, string>): PlanFormValues {
@@ -65,7 +102,11 @@ export function planValuesFromForm(form: Record<string, string>): PlanFormValues
 		fit: { maxRmsPct: v('fit.maxRmsPct') },
 		matching: { setSize: v('matching.setSize'), tolerancePct: v('matching.tolerancePct') },
 		bins: Object.fromEntries(BIN_CATEGORIES.map((c) => [c, v(`bins.${c}`)])) as PlanFormValues['bins'],
-		spc: { baselineParts: v('spc.baselineParts') },
+		spc: {
+			...(Object.fromEntries(SPC_NUMBER_FIELDS.map((f) => [f, v(`spc.${f}`)])) as Omit<PlanFormValues['spc'], 'rules'>),
+			// A form posted without the rule boxes (an older page, a script) keeps the defaults.
+			rules: 'spc.rules' in form ? ALL_RULE_IDS.filter((id) => form[`spc.rule.${id}`] !== undefined) : [...DEFAULT_RULE_IDS]
+		},
 		note: v('note')
 	};
 }
@@ -174,8 +215,16 @@ export function parsePlanForm(values: PlanFormValues): PlanParse {
 		if (b !== undefined) bins[c] = b;
 	}
 	if (Object.keys(bins).length > 0) plan.bins = bins;
-	const baselineParts = r.num('spc.baselineParts', values.spc.baselineParts, { whole: true });
-	if (baselineParts !== undefined) plan.spc = { baselineParts };
+	const spc: NonNullable<SpecPlan['spc']> = {};
+	for (const f of SPC_NUMBER_FIELDS) {
+		const n = r.num(`spc.${f}`, values.spc[f], { whole: SPC_WHOLE.has(f) });
+		if (n !== undefined) spc[f] = n;
+	}
+	// The default rule set is stored as no choice, so the plan follows the product's defaults.
+	const rules = ALL_RULE_IDS.filter((id) => values.spc.rules.includes(id));
+	const isDefault = rules.length === DEFAULT_RULE_IDS.length && rules.every((id) => DEFAULT_RULE_IDS.includes(id));
+	if (!isDefault) spc.rules = rules;
+	if (Object.keys(spc).length > 0) plan.spc = spc;
 	const parsed = SpecPlanSchema.safeParse(plan);
 	if (parsed.success && Object.keys(r.errors).length === 0) return { ok: true, plan: parsed.data };
 	const errors: FormErrors = { ...r.errors };

@@ -69,6 +69,11 @@ const RULE_TEXT: Record<RuleId, string> = {
 	'CUSUM-': 'lower CUSUM above the decision interval'
 };
 
+/** What a rule looks for, in words (the same text its violations carry). */
+export function ruleText(id: RuleId): string {
+	return RULE_TEXT[id];
+}
+
 const RULE_ORDER = new Map<RuleId, number>(ALL_RULE_IDS.map((id, i) => [id, i]));
 
 function violation(ruleId: RuleId, index: number, direction: Direction): Violation {
