@@ -112,3 +112,19 @@ export const LotViewQuery = z.object({
 	cv: z.preprocess(empty, z.enum(['linear', 'log']).catch('linear').default('linear')),
 	cap: z.preprocess(empty, z.string().max(20).optional())
 });
+
+/**
+ * The parts query as the OpenAPI document shows it (strings as they arrive in the URL). Kept
+ * beside PartsQuery, which validates; lots.test.ts checks both accept and refuse the same examples.
+ */
+export const PartsQueryDoc = z.object({
+	sort: z.string().optional().meta({ description: 'serial, tested (default), bin, station, or c1…c20' }),
+	dir: z.enum(['asc', 'desc']).optional().meta({ description: 'default: desc for tested, asc otherwise' }),
+	bin: z.string().optional().meta({ description: 'bin number 1–99' }),
+	result: z.enum(['pass', 'fail']).optional(),
+	station: z.string().optional().meta({ description: 'station name' }),
+	serial: z.string().optional().meta({ description: 'serial prefix' }),
+	kind: z.enum(PART_KINDS).optional().meta({ description: 'default production' }),
+	after: z.string().optional().meta({ description: 'cursor: the page after this row (a response’s next)' }),
+	before: z.string().optional().meta({ description: 'cursor: the page before this row (a response’s prev)' })
+});

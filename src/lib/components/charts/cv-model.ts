@@ -51,7 +51,10 @@ export function linearTicks(lo: number, hi: number, count = 5): number[] {
 	if (!(hi > lo) || !Number.isFinite(lo) || !Number.isFinite(hi)) return Number.isFinite(lo) ? [lo] : [];
 	const raw = (hi - lo) / Math.max(1, count);
 	const mag = 10 ** Math.floor(Math.log10(raw));
-	const step = [1, 2, 5, 10].map((m) => m * mag).find((s) => s >= raw) ?? 10 * mag;
+	// the 1-2-5 step whose tick count comes nearest the wish
+	const span = hi - lo;
+	const want = Math.max(1, count);
+	const step = [1, 2, 5, 10].map((m) => m * mag).reduce((best, s) => (Math.abs(span / s - want) < Math.abs(span / best - want) ? s : best));
 	const out: number[] = [];
 	for (let t = Math.ceil(lo / step) * step; t <= hi + step * 1e-9; t += step) out.push(Number(t.toPrecision(12)));
 	return out;
