@@ -14,3 +14,5 @@ export const UploadQuery = z.object({
 export const UploadsPageQuery = z.object({ lot: z.string().trim().max(40).optional().catch(undefined) });
 
 export const UnitIdParam = z.coerce.number().int().positive().max(Number.MAX_SAFE_INTEGER);
+
+export const UnitsBySerialQuery = z.object({ serial: z.string({ error: 'Give a serial' }).trim().min(1, { error: 'Give a serial' }).max(80) });

@@ -5,7 +5,7 @@ import { z } from 'zod';
 import { NewUserBody, SessionUserOut, SignInBody } from '$lib/schemas/people';
 import { LotBody, LotStatusBody, ProductBody, StationBody } from '$lib/schemas/setup';
 import { CalibrationBody, ResultsBody } from '$lib/schemas/station-api';
-import { UploadQuery } from '$lib/schemas/uploads';
+import { UnitsBySerialQuery, UploadQuery } from '$lib/schemas/uploads';
 import { AlarmChangeBody, AlarmsQuery, ChartQuery, ChartsQuery, RecomputeLimitsBody, UnitsQuery } from '$lib/schemas/query';
 import { AuditQuery, StudyBody, StudyPatchBody } from '$lib/schemas/studies';
 
@@ -354,6 +354,14 @@ function build() {
 		security: [{ session: [] }],
 		request: { query: AuditQuery.omit({ limit: true, offset: true }) },
 		responses: { 200: { description: 'text/csv', content: { 'text/csv': { schema: z.string() } } }, ...problems(400, 401, 403) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/units',
+		summary: 'Parts with a serial (each test of it), newest first',
+		security: [{ session: [] }],
+		request: { query: UnitsBySerialQuery },
+		responses: { 200: ok('Parts', { units: [{ id: 1, serial: 'LT-26-1187-0001', lot: 'LT-26-1187', kind: 'production', source: 'station', bin: 1, pass: true }] }), ...problems(400, 401, 403) }
 	});
 	r.registerPath({
 		method: 'get',

@@ -123,3 +123,15 @@ function fittedCurve(fit: { cj0F: number; vjV: number; m: number; cpF: number },
 	}
 	return out;
 }
+
+export type PartHit = { id: number; serial: string; lot: string; kind: PartDetail['kind']; source: string; testedAt: string; bin: number; pass: boolean };
+
+/** Parts with this exact serial (a retest gives several), newest first; uses units_serial_idx. */
+export async function partsBySerial(serial: string, limit = 20): Promise<PartHit[]> {
+	const rows = await db().query<{ id: string; serial: string; number: string; kind: PartDetail['kind']; source: string; tested_at: Date; bin: number; pass: boolean }>(
+		`SELECT u.id, u.serial, l.number, u.kind, u.source, u.tested_at, u.bin, u.pass FROM units u JOIN lots l ON l.id = u.lot_id
+		 WHERE u.serial = :serial ORDER BY u.id DESC LIMIT :limit`,
+		{ replacements: { serial, limit }, type: QueryTypes.SELECT }
+	);
+	return rows.map((r) => ({ id: Number(r.id), serial: r.serial, lot: r.number, kind: r.kind, source: r.source, testedAt: r.tested_at.toISOString(), bin: r.bin, pass: r.pass }));
+}
