@@ -23,8 +23,14 @@ export type UnitAnswer = {
 };
 
 export type IngestOutcome =
-	| { ok: true; status: 200 | 201; replayed: boolean; body: { results: UnitAnswer[] }; alarms: OpenedAlarm[]; timings?: { judgeMs: number; spcMs: number } }
+	| { ok: true; status: 200 | 201; replayed: boolean; body: { results: UnitAnswer[] }; alarms: OpenedAlarm[]; timings?: IngestTimings }
 	| { ok: false; status: 400 | 404 | 409; kind: string; detail: string; errors?: { path: string; message: string }[] };
+
+/**
+ * Where a post's time went, in ms: the context read, judging, the claim-and-lock statement, rule
+ * stepping, the write statement, and the rest of the transaction (alarms, mail, commit).
+ */
+export type IngestTimings = { contextMs: number; judgeMs: number; lockMs: number; spcMs: number; writeMs: number; commitMs: number };
 
 /** The hash that decides "the same body": SHA-256 of the request's bytes as sent. */
 export function requestHash(rawBody: string): string {
@@ -114,7 +120,9 @@ export async function ingestResults(
 ): Promise<IngestOutcome> {
 	// A measurement-system study's batch: its own checks and storage (kind 'study', no charts, no yield).
 	if (body.study !== undefined) return ingestStudyBatch(principal, key, hash, body, now);
+	const t0 = performance.now();
 	const ctx = await ingestContext(principal.id, key, body.lot);
+	const contextMs = performance.now() - t0;
 	if (ctx.stored) return replayOf(ctx.stored, hash);
 	const station = ctx.station;
 	if (!station) return { ok: false, status: 404, kind: 'not-found', detail: 'Station not found' };
@@ -190,12 +198,16 @@ export async function ingestResults(
 	const production = records.filter((r) => r.kind === 'production');
 	let alarms: OpenedAlarm[] = [];
 	let spcMs = 0;
+	let lockMs = 0;
+	let writeMs = 0;
+	let writtenAt = 0;
 	try {
 		await db().transaction(async (t) => {
 			// One statement: claim the key (a concurrent post with the same key waits here until
 			// this transaction ends, then finds it taken and replays), check the lot is still open,
 			// draw the parts' ids, and lock the batch's charts in id order. The select list is
 			// evaluated left to right, so the key is claimed before any chart is locked.
+			const lockStart = performance.now();
 			const [first] = await db().query<{ claimed: string; open: string; ids: string[]; charts: ChartRow[] | null }>(
 				`WITH claim AS (
 				   INSERT INTO idempotency_keys (station_id, key, request_hash, status, response) VALUES ($1, $2, $3, 201, CAST($4 AS jsonb))
@@ -210,6 +222,7 @@ export async function ingestResults(
 					transaction: t
 				}
 			);
+			lockMs = performance.now() - lockStart;
 			if (!first || Number(first.claimed) === 0) throw new KeyTaken();
 			if (Number(first.open) === 0) throw new LotClosed();
 			records.forEach((r, i) => (r.id = Number(first.ids[i])));
@@ -230,6 +243,7 @@ export async function ingestResults(
 			}));
 			// With no alarm to open, the events go out in the same statement as the parts.
 			const eventsHere = writes.pending.length === 0;
+			const writeStart = performance.now();
 			const [written] = await db().query<{ lot_tested: string; lot_passed: string; window_n: string; window_passed: string }>(
 				`WITH u AS (
 				   INSERT INTO units (id, lot_id, station_id, plan_version_id, calibration_id, serial, kind, tested_at, temperature_c, leakage_a,
@@ -290,6 +304,8 @@ export async function ingestResults(
 					transaction: t
 				}
 			);
+			writtenAt = performance.now();
+			writeMs = writtenAt - writeStart;
 			if (eventsHere) return;
 			const opened = await openBatchAlarms(t, station.id, writes);
 			alarms = opened;
@@ -335,7 +351,8 @@ export async function ingestResults(
 		if (e instanceof LotClosed) return { ok: false, status: 409, kind: 'lot-closed', detail: `Lot ${lot.number} is closed` };
 		throw e;
 	}
-	return { ok: true, status: 201, replayed: false, body: response, alarms, timings: { judgeMs, spcMs } };
+	const commitMs = performance.now() - writtenAt;
+	return { ok: true, status: 201, replayed: false, body: response, alarms, timings: { contextMs, judgeMs, lockMs, spcMs, writeMs, commitMs } };
 }
 
 /** The yield event of a batch from the figures its write statement returned. */

@@ -39,6 +39,11 @@ export const POST: RequestHandler = async ({ request, locals, url }) => {
 	if (!outcome.ok) return problem(outcome.status, outcome.detail, { kind: outcome.kind, errors: outcome.errors });
 	const headers: Record<string, string> = outcome.replayed ? { 'idempotent-replayed': 'true' } : {};
 	// Server-Timing (W3C): where the post's time went, for benchmarks and station logs.
-	if (outcome.timings) headers['server-timing'] = `judge;dur=${outcome.timings.judgeMs.toFixed(2)}, spc;dur=${outcome.timings.spcMs.toFixed(2)}`;
+	if (outcome.timings) {
+		const t = outcome.timings;
+		headers['server-timing'] = Object.entries({ context: t.contextMs, judge: t.judgeMs, lock: t.lockMs, spc: t.spcMs, write: t.writeMs, commit: t.commitMs })
+			.map(([name, ms]) => `${name};dur=${ms.toFixed(2)}`)
+			.join(', ');
+	}
 	return json(outcome.body, { status: outcome.status, headers });
 };
