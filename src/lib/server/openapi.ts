@@ -6,6 +6,7 @@ import { NewUserBody, SessionUserOut, SignInBody } from '$lib/schemas/people';
 import { LotBody, LotStatusBody, ProductBody, StationBody } from '$lib/schemas/setup';
 import { CalibrationBody, ResultsBody } from '$lib/schemas/station-api';
 import { UnitsBySerialQuery, UploadQuery } from '$lib/schemas/uploads';
+import { CertificateMailBody, DispositionBody, MatchedSetsBody, PartsQueryDoc, SetsQuery } from '$lib/schemas/lots';
 import { AlarmChangeBody, AlarmsQuery, ChartQuery, ChartsQuery, RecomputeLimitsBody, UnitsQuery } from '$lib/schemas/query';
 import { AuditQuery, StudyBody, StudyPatchBody } from '$lib/schemas/studies';
 
@@ -410,6 +411,60 @@ function build() {
 	});
 	// The lot page: parts table, hold and release, matched sets, certificate.
 	const lotParam = z.object({ number: z.string() });
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/lots/{number}/parts',
+		summary: 'The lot’s parts sorted (serial, tested, bin, station, c1…c20 = capacitance at plan point n) and filtered, 50 a page by keyset: pass `next` as `after`, `prev` as `before`',
+		security: [{ session: [] }],
+		request: { params: lotParam, query: PartsQueryDoc },
+		responses: {
+			200: ok('A page of parts', { biasV: [1, 4, 25], rows: [{ id: 812, serial: 'LT-26-1187-000812', kind: 'production', station: 'A-01', testedAt: '2026-12-01T08:15:00.000Z', bin: 1, pass: true, capacitanceF: [3.1e-11, 1.6e-11, 2.5e-12] }], next: 'WyJMVC0yNi0xMTg3LTAwMDgxMiIsODEyXQ', prev: null, total: 4212, totalCapped: false, unknownStation: false }),
+			...problems(400, 401, 403, 404)
+		}
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/lots/{number}/disposition',
+		summary: 'Hold or release the lot with a reason (engineer, admin; audited). Release needs a closed lot; holding does not stop testing',
+		security: [{ session: [] }],
+		request: { params: lotParam, ...jsonBody(DispositionBody, { disposition: 'held', reason: 'C at 25 V drifting high on A-02; waiting for the correlation study' }) },
+		responses: { 200: ok('Lot summary'), ...problems(400, 401, 403, 404, 409, 415) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/lots/{number}/matched-sets',
+		summary: 'The lot’s current matched-set build and a page of its sets with member serials',
+		security: [{ session: [] }],
+		request: { params: lotParam, query: SetsQuery },
+		responses: {
+			200: ok('Sets', { build: { id: 3, setSize: 2, tolerancePct: 1, candidates: 4012, setCount: 1990, unmatched: 32, builtAt: '2026-12-01T09:00:00.000Z', builtBy: 'Noor Haddad' }, sets: [{ seq: 1, spreadPct: 0.21, members: [{ unitId: 812, serial: 'LT-26-1187-000812' }, { unitId: 97, serial: 'LT-26-1187-000097' }] }] }),
+			...problems(400, 401, 403, 404)
+		}
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/lots/{number}/matched-sets',
+		summary: 'Build matched sets from the lot’s good parts (engineer, admin; audited); replaces the current build',
+		security: [{ session: [] }],
+		request: { params: lotParam, ...jsonBody(MatchedSetsBody, { setSize: 2, tolerancePct: 1 }) },
+		responses: { 201: ok('The new build'), ...problems(400, 401, 403, 404, 409, 415) }
+	});
+	r.registerPath({
+		method: 'get',
+		path: '/api/v1/lots/{number}/certificate.pdf',
+		summary: 'Certificate of conformance as PDF (engineer, admin); only for a released lot (409 otherwise)',
+		security: [{ session: [] }],
+		request: { params: lotParam },
+		responses: { 200: { description: 'PDF', content: { 'application/pdf': { schema: z.string() } } }, ...problems(401, 403, 404, 409) }
+	});
+	r.registerPath({
+		method: 'post',
+		path: '/api/v1/lots/{number}/certificate/mail',
+		summary: 'E-mail the certificate (PDF attached) to a customer contact through the mail queue (engineer, admin; audited); only for a released lot',
+		security: [{ session: [] }],
+		request: { params: lotParam, ...jsonBody(CertificateMailBody, { to: 'incoming.quality@customer.example', contact: 'A. Lindqvist', note: 'Shipment 44, two reels' }) },
+		responses: { 202: ok('Queued', { queued: 57, to: 'incoming.quality@customer.example' }), ...problems(400, 401, 403, 404, 409, 415) }
+	});
 	r.registerPath({
 		method: 'get',
 		path: '/api/v1/openapi.json',
