@@ -17,12 +17,35 @@ export const VIEW_LABELS: Record<ChartViewId, string> = {
 /** Anything odd in the URL falls back to "not chosen" instead of a 400: the page stays usable. */
 const optionalText = z.string().trim().max(40).optional().catch(undefined);
 
+const rangeBound = z
+	.string()
+	.trim()
+	.regex(/^\d{4}-\d{2}-\d{2}(T\d{2}:\d{2}(:\d{2}(\.\d+)?)?(Z|[+-]\d{2}:\d{2}))?$/)
+	.transform((s) => (s.length === 10 ? `${s}T00:00:00Z` : s))
+	.refine((s) => Number.isFinite(Date.parse(s)))
+	.transform((s) => new Date(s).toISOString())
+	.optional()
+	.catch(undefined);
+
 export const ChartsPageQuery = z.object({
 	product: optionalText,
 	station: optionalText,
 	kind: z.enum(['production', 'reference']).optional().catch(undefined),
 	chart: z.coerce.number().int().positive().optional().catch(undefined),
-	view: z.enum(CHART_VIEW_IDS).default('imr').catch('imr')
+	/** e.g. C@1V; kept when product, station or kind change */
+	characteristic: z.string().trim().max(60).optional().catch(undefined),
+	view: z.enum(CHART_VIEW_IDS).default('imr').catch('imr'),
+	/** Stations shown side by side (comma-separated names), with one y scale when shared=1. */
+	stations: z
+		.string()
+		.max(400)
+		.transform((s) => [...new Set(s.split(',').map((x) => x.trim()).filter((x) => x.length > 0 && x.length <= 40))].slice(0, 12))
+		.optional()
+		.catch(undefined),
+	shared: z.enum(['1', '0']).optional().catch(undefined),
+	/** Time range of the points: a date (YYYY-MM-DD, UTC) or an ISO time; `to` is exclusive. */
+	from: rangeBound,
+	to: rangeBound
 });
 export type ChartsSelection = z.infer<typeof ChartsPageQuery>;
 

@@ -38,7 +38,10 @@ export const ChartsQuery = z.object({
 export const ChartQuery = z.object({
 	view: z.enum(['imr', 'xbar-r', 'xbar-s', 'ewma', 'cusum', 'p']).default('imr'),
 	limit: z.coerce.number().int().min(2).max(100_000).default(500),
-	fromSeq: z.coerce.number().int().min(0).optional()
+	fromSeq: z.coerce.number().int().min(0).optional(),
+	/** Time range of the points (ISO 8601): from inclusive, to exclusive. */
+	from: z.iso.datetime({ offset: true }).optional(),
+	to: z.iso.datetime({ offset: true }).optional()
 });
 
 export const RecomputeLimitsBody = z

@@ -111,7 +111,7 @@ export function specOf(plan: SpecPlan, characteristic: string): { lowerSpecLimit
 	return {};
 }
 
-export type ChartPoint = { seq: number; value: number; at: string; serial: string; rules: string[]; limitsVersion: number };
+export type ChartPoint = { seq: number; value: number; at: string; serial: string; unitId: number; rules: string[]; limitsVersion: number };
 
 type ViewData =
 	| { view: 'imr'; movingRange: { seq: number; value: number | null }[]; mrLimits: { centerLine: number; upperControlLimit: number; lowerControlLimit: number } | null }
@@ -133,18 +133,20 @@ export type ChartDetail = {
 };
 
 /** A chart's newest `limit` points (or those from `fromSeq`) in the view asked for. */
-export async function chartDetail(id: number, view: ChartView, opts: { limit: number; fromSeq?: number }): Promise<ChartDetail | null> {
+export async function chartDetail(id: number, view: ChartView, opts: { limit: number; fromSeq?: number; from?: string; to?: string }): Promise<ChartDetail | null> {
 	const row = await chartRow(id);
 	if (!row) return null;
-	const pointRows = await db().query<{ seq: number; value: number; at: Date; serial: string; rules: string[]; limits_version: number }>(
+	// A time range reads through chart_points_at_idx (chart_id, at).
+	const range = `${opts.from ? ' AND p.at >= :from' : ''}${opts.to ? ' AND p.at < :to' : ''}`;
+	const pointRows = await db().query<{ seq: number; value: number; at: Date; serial: string; unit_id: string; rules: string[]; limits_version: number }>(
 		opts.fromSeq === undefined
-			? `SELECT * FROM (SELECT p.seq, p.value, p.at, u.serial, p.rules, p.limits_version FROM chart_points p JOIN units u ON u.id = p.unit_id
-			   WHERE p.chart_id = :id ORDER BY p.seq DESC LIMIT :limit) x ORDER BY seq`
-			: `SELECT p.seq, p.value, p.at, u.serial, p.rules, p.limits_version FROM chart_points p JOIN units u ON u.id = p.unit_id
-			   WHERE p.chart_id = :id AND p.seq >= :fromSeq ORDER BY p.seq LIMIT :limit`,
-		{ replacements: { id, limit: opts.limit, fromSeq: opts.fromSeq }, type: QueryTypes.SELECT }
+			? `SELECT * FROM (SELECT p.seq, p.value, p.at, u.serial, p.unit_id, p.rules, p.limits_version FROM chart_points p JOIN units u ON u.id = p.unit_id
+			   WHERE p.chart_id = :id${range} ORDER BY p.seq DESC LIMIT :limit) x ORDER BY seq`
+			: `SELECT p.seq, p.value, p.at, u.serial, p.unit_id, p.rules, p.limits_version FROM chart_points p JOIN units u ON u.id = p.unit_id
+			   WHERE p.chart_id = :id AND p.seq >= :fromSeq${range} ORDER BY p.seq LIMIT :limit`,
+		{ replacements: { id, limit: opts.limit, fromSeq: opts.fromSeq, from: opts.from, to: opts.to }, type: QueryTypes.SELECT }
 	);
-	const points = pointRows.map((p) => ({ seq: p.seq, value: p.value, at: p.at.toISOString(), serial: p.serial, rules: p.rules, limitsVersion: p.limits_version }));
+	const points = pointRows.map((p) => ({ seq: p.seq, value: p.value, at: p.at.toISOString(), serial: p.serial, unitId: Number(p.unit_id), rules: p.rules, limitsVersion: p.limits_version }));
 	const history = await db().query<{ version: number; from_seq: number; to_seq: number; reason: string; exclusions: { seq: number; reason: string }[]; created_at: Date; email: string | null }>(
 		`SELECT l.version, l.from_seq, l.to_seq, l.reason, l.exclusions, l.created_at, u.email FROM chart_limits l LEFT JOIN users u ON u.id = l.created_by
 		 WHERE l.chart_id = :id ORDER BY l.version DESC`,

@@ -9,9 +9,9 @@ const detail = (data: ChartDetail['data'], withLimits = true): ChartDetail => ({
 	limitsHistory: [],
 	spec: { lowerSpecLimit: 20, upperSpecLimit: 26.9 },
 	points: [
-		{ seq: 0, value: 26.5, at: '2026-01-01T00:00:00Z', serial: 'S1', rules: [], limitsVersion: 1 },
-		{ seq: 1, value: 26.4, at: '2026-01-01T00:01:00Z', serial: 'S2', rules: [], limitsVersion: 1 },
-		{ seq: 2, value: 27.0, at: '2026-01-01T00:02:00Z', serial: 'S3', rules: ['WE1'], limitsVersion: 1 }
+		{ seq: 0, value: 26.5, at: '2026-01-01T00:00:00Z', serial: 'S1', unitId: 101, rules: [], limitsVersion: 1 },
+		{ seq: 1, value: 26.4, at: '2026-01-01T00:01:00Z', serial: 'S2', unitId: 102, rules: [], limitsVersion: 1 },
+		{ seq: 2, value: 27.0, at: '2026-01-01T00:02:00Z', serial: 'S3', unitId: 103, rules: ['WE1'], limitsVersion: 1 }
 	],
 	data,
 	capability: null,
@@ -25,6 +25,7 @@ describe('chartModel', () => {
 		expect(i?.lines.map((l) => l.label)).toEqual(['CL', 'UCL', 'LCL', 'LSL', 'USL']);
 		expect(i?.bands.map((b) => [b.from, b.to].map((v) => +v.toFixed(3)))).toEqual([[26.3, 26.7], [26.4, 26.6]]);
 		expect(i?.series.find((p) => p.x === 2)?.rules).toEqual(['WE1']);
+		expect(i?.series.map((p) => p.unitId)).toEqual([101, 102, 103]); // a click opens the part
 		expect(mr?.series.map((p) => p.x)).toEqual([1, 2]);
 		expect(mr?.lines.map((l) => l.label)).toEqual(['CL', 'UCL']); // LCL = 0 is not drawn
 		expect(m.message).toBeNull();

@@ -3,7 +3,7 @@
 import type { ChartDetail } from '$lib/server/charts';
 import type { ShewhartLimits } from '$lib/spc/types';
 
-export type PlotPoint = { x: number; y: number; title: string; serial?: string; at?: string; rules: string[] };
+export type PlotPoint = { x: number; y: number; title: string; serial?: string; at?: string; rules: string[]; unitId?: number };
 export type RefLine = { value: number; label: string; tone: 'center' | 'limit' | 'spec' | 'zero' };
 export type Band = { from: number; to: number; tone: 'one' | 'two' };
 export type Envelope = { x: number; upper: number; lower: number }[];
@@ -66,7 +66,7 @@ export function chartModel(d: ChartDetail): ChartModel {
 				title: `Individuals · ${d.chart.characteristic}`,
 				unit,
 				...POINTS,
-				series: pts.map((p) => ({ x: p.seq, y: p.value, title: `Point ${p.seq}`, serial: p.serial, at: p.at, rules: p.rules })),
+				series: pts.map((p) => ({ x: p.seq, y: p.value, title: `Point ${p.seq}`, serial: p.serial, at: p.at, rules: p.rules, unitId: p.unitId })),
 				lines: [...(shew ? shewhartLines(shew) : []), ...spec],
 				bands: shew ? zones(shew) : [],
 				size: 'main'

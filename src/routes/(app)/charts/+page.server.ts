@@ -5,6 +5,7 @@ import { resolvePick } from '$lib/api/chart-selection';
 import { requireArea } from '$lib/server/auth';
 import { chartDetail, listCharts, recomputeLimits } from '$lib/server/charts';
 import { ChartsPageQuery, recomputeInput } from '$lib/schemas/charts-ui';
+import { siblings } from './explorer';
 import { fieldErrors, formObject } from '$lib/schemas/form';
 import { queryObject } from '$lib/schemas/query';
 import type { Actions, PageServerLoad } from './$types';
@@ -16,8 +17,21 @@ export const load: PageServerLoad = async (event) => {
 	const q = ChartsPageQuery.parse(event.untrack(() => queryObject(event.url.searchParams)));
 	const charts = await listCharts();
 	const pick = resolvePick(charts, q);
-	const detail = pick ? await chartDetail(pick.chart.id, q.view, { limit: CHART_POINT_LIMIT }) : null;
-	return { charts, pick, view: q.view, detail, mayManage: mayUse(user.role, 'charts.manage') };
+	const range = { from: q.from, to: q.to };
+	const detail = pick ? await chartDetail(pick.chart.id, q.view, { limit: CHART_POINT_LIMIT, ...range }) : null;
+	// Side by side: the same characteristic at the stations named in the URL.
+	const side = pick ? siblings(charts, pick).filter((c) => q.stations?.some((s) => s.toLowerCase() === c.station.toLowerCase())) : [];
+	const sideDetails = (await Promise.all(side.map((c) => chartDetail(c.id, q.view, { limit: CHART_POINT_LIMIT, ...range })))).filter((d) => d !== null);
+	return {
+		charts,
+		pick,
+		view: q.view,
+		detail,
+		range,
+		side: { stations: side.map((c) => c.station), shared: q.shared === '1' },
+		sideDetails,
+		mayManage: mayUse(user.role, 'charts.manage')
+	};
 };
 
 export const actions: Actions = {

@@ -3,6 +3,7 @@ import { mayUse } from '$lib/auth/roles';
 import { requireArea } from '$lib/server/auth';
 import { parseStationForm, stationToValues, stationValuesFromForm } from '$lib/server/plan-form';
 import { stationPage } from '$lib/server/setup-views';
+import { stationTrends } from '$lib/server/station-view';
 import { loadLotOnStation } from '$lib/server/setup-writes';
 import { getStationByName, revokeToken, rotateToken, updateStation } from '$lib/server/stations';
 import { fieldErrors, formObject } from '$lib/schemas/form';
@@ -25,6 +26,7 @@ export const load: PageServerLoad = async (event) => {
 	if (!view) error(404, 'Station not found');
 	return {
 		...view,
+		trends: await stationTrends(view.station.id, new Date()),
 		values: stationToValues(view.station),
 		mayManage: mayUse(user.role, 'stations.manage'),
 		mayLoadLots: mayUse(user.role, 'lots.manage')
