@@ -67,7 +67,7 @@ describe('sign-in and the shell in Chromium', () => {
 		await page.click('button:has-text("Sign in")');
 		await page.waitForURL(/\/floor$/);
 		const nav = await page.locator('nav[aria-label=Areas] a').allTextContents();
-		expect(nav.map((t) => t.trim())).toEqual(['Floor', 'Lots', 'Stations', 'Charts', 'Alarms', 'Products', 'Studies', 'Audit', 'Admin']);
+		expect(nav.map((t) => t.trim())).toEqual(['Floor', 'Lots', 'Stations', 'Charts', 'Uploads', 'Alarms', 'Products', 'Studies', 'Audit', 'Admin']);
 		await page.goto(`${baseUrl()}/admin`);
 		const before = await page.locator('tr[data-user]').count();
 		await page.fill('#f-name', 'Half Filled');
