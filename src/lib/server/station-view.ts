@@ -72,7 +72,7 @@ export async function stationTrends(stationId: number, now: Date): Promise<Stati
 			{ replacements: { stationId }, type: QueryTypes.SELECT }
 		),
 		db().query<{ hour: Date; parts: string }>(
-			`SELECT date_trunc('hour', received_at) AS hour, count(*) AS parts FROM units
+			`SELECT date_trunc('hour', received_at, 'UTC') AS hour, count(*) AS parts FROM units
 			 WHERE station_id = :stationId AND received_at > :since GROUP BY 1 ORDER BY 1`,
 			{ replacements: { stationId, since: new Date(now.getTime() - 24 * 3600e3) }, type: QueryTypes.SELECT }
 		)

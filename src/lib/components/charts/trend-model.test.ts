@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { calibrationPanels, referencePanels } from './trend-model';
+import { calibrationPanels, referencePanels, trendDomain } from './trend-model';
 
 describe('station trend panels', () => {
 	test('one point per calibration in µH and pF, numbered from the oldest', () => {
@@ -19,5 +19,19 @@ describe('station trend panels', () => {
 		expect(p?.lines.map((x) => [x.label, x.value])).toEqual([['CL', 30], ['UCL', 30.3], ['LCL', 29.7]]);
 		expect(p?.series[0]?.unitId).toBe(77);
 		expect(referencePanels([{ chartId: 1, productCode: 'K', characteristic: 'C@1V', unit: 'pF', limits: null, points: [] }])[0]?.lines).toEqual([]);
+	});
+});
+
+describe('trendDomain', () => {
+	test('a flat series gets a range of the chosen relative width; a wide one keeps its spread', () => {
+		const [l] = calibrationPanels([{ id: 1, at: '2026-01-01T06:00:00Z', inductanceH: 100e-6, strayF: 3e-12, residualPpm: 1 }]);
+		const d = l ? trendDomain(l, 0.005) : undefined;
+		expect(d?.map((v) => +v.toFixed(6))).toEqual([99.75, 100.25]);
+		const [, s] = calibrationPanels([
+			{ id: 1, at: '2026-01-01T06:00:00Z', inductanceH: 100e-6, strayF: 2e-12, residualPpm: 1 },
+			{ id: 2, at: '2026-01-01T07:00:00Z', inductanceH: 100e-6, strayF: 4e-12, residualPpm: 1 }
+		]);
+		const w = s ? trendDomain(s, 0.005) : undefined;
+		expect(w?.map((v) => +v.toFixed(6))).toEqual([1.84, 4.16]);
 	});
 });

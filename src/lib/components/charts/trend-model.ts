@@ -46,3 +46,17 @@ export function referencePanels(reference: StationTrends['reference']): Panel[] 
 		...small
 	}));
 }
+
+/**
+ * A y range at least `minRelative` of the values' magnitude wide, so a flat trend reads as flat
+ * instead of magnifying rounding (our choice: 0.5 % for L and stray, 0.2 % for reference charts).
+ */
+export function trendDomain(p: Panel, minRelative: number): [number, number] | undefined {
+	const ys = [...p.series.map((s) => s.y), ...p.lines.map((l) => l.value)].filter(Number.isFinite);
+	if (ys.length === 0) return undefined;
+	const lo = Math.min(...ys);
+	const hi = Math.max(...ys);
+	const mid = (lo + hi) / 2;
+	const half = Math.max((hi - lo) * 0.58, (Math.abs(mid) * minRelative) / 2);
+	return [mid - half, mid + half];
+}
