@@ -194,3 +194,21 @@ describe('studies API', () => {
 		expect(lines.some((l) => l.includes(`,study,${studyId},finish,`))).toBe(true);
 	});
 });
+
+describe('the demo study', () => {
+	test('a finished study of A-01 and A-02 is there on a fresh start, analysed, with A-02 reading high', async () => {
+		const list = (await (await fetch(`${baseUrl()}/api/v1/studies`, { headers: { cookie: engineer } })).json()) as { studies: { id: number; name: string; status: string; stations: string[]; filled: number; total: number }[] };
+		const demo = list.studies.find((x) => x.name === 'Line A after socket change');
+		expect(demo?.status).toBe('finished');
+		expect(demo?.stations).toEqual(['A-01', 'A-02']);
+		expect(demo?.filled).toBe(60);
+		const study = (await (await fetch(`${baseUrl()}/api/v1/studies/${demo?.id}`, { headers: { cookie: engineer } })).json()) as Study;
+		const c1 = study.analysis?.characteristics[0];
+		expect(c1?.anova.ok).toBe(true);
+		// The demo injects +0.25 % on A-02: A-01 − A-02 ≈ −0.25 % with an interval that excludes 0.
+		const pair = c1?.correlation.value?.pairs[0]?.relativePct;
+		expect(pair?.ciHigh).toBeLessThan(0);
+		expect(pair?.ciLow).toBeLessThan(-0.2);
+		expect((await fetch(`${baseUrl()}/api/v1/studies/${demo?.id}/report.pdf`, { headers: { cookie: engineer } })).status).toBe(200);
+	});
+});

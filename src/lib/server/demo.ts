@@ -7,6 +7,7 @@ import path from 'node:path';
 import { QueryTypes, type Transaction } from 'sequelize';
 import { sha256 } from './auth';
 import { db } from './db';
+import { seedDemoStudy } from './demo-study';
 import { hashPassword } from './passwords';
 
 export const DEMO_PASSWORD = 'biasline-demo';
@@ -179,6 +180,8 @@ export async function seedDemo(dataDir: string): Promise<boolean> {
 		await db().query("UPDATE users SET alarm_digest_minutes = 15 WHERE email = 'noor.haddad@corvane.example'", { transaction: t });
 		// The site named on lot certificates.
 		await db().query(`INSERT INTO meta (key, value) VALUES ('site-name', to_jsonb('Corvane Semiconductor, Halden works'::text)) ON CONFLICT (key) DO NOTHING`, { transaction: t });
+		// A finished gauge study of A-01 and A-02, so the Studies page shows an analysis at once.
+		await seedDemoStudy(t);
 		await db().query("INSERT INTO meta (key, value) VALUES ('demo-seeded', to_jsonb(now()))", { transaction: t });
 	});
 	fs.mkdirSync(dataDir, { recursive: true });
