@@ -70,29 +70,29 @@ describe('the lot page', () => {
 		await page.focus('[data-sort-link=serial]');
 		await page.keyboard.press('Enter');
 		await page.waitForURL(/sort=serial/);
-		expect(await serials(page)).toEqual(posted.map((p) => p.serial).sort().slice(0, 50));
+		await expect.poll(() => serials(page), { timeout: 10_000 }).toEqual(posted.map((p) => p.serial).sort().slice(0, 50));
 		expect(await page.evaluate(() => document.activeElement?.getAttribute('data-sort-link'))).toBe('serial');
 		expect(await page.locator('th[aria-sort=ascending] [data-sort-link=serial]').count()).toBe(1);
 		await page.keyboard.press('Enter');
 		await page.waitForURL(/dir=desc/);
-		expect(await firstSerial(page)).toBe(posted.map((p) => p.serial).sort().reverse()[0]);
+		await expect.poll(() => firstSerial(page), { timeout: 10_000 }).toBe(posted.map((p) => p.serial).sort().reverse()[0]);
 		// Next page by keyboard, then Back.
 		const firstPage = await serials(page);
 		await page.focus('[data-page=next]');
 		await page.keyboard.press('Enter');
 		await page.waitForURL(/after=/);
+		await expect.poll(() => serials(page).then((s) => s.length), { timeout: 10_000 }).toBe(20);
 		const secondPage = await serials(page);
-		expect(secondPage).toHaveLength(20);
 		expect(secondPage.some((s) => firstPage.includes(s))).toBe(false);
 		await page.goBack();
 		await page.waitForURL((u) => !u.search.includes('after='));
-		expect(await serials(page)).toEqual(firstPage);
+		await expect.poll(() => serials(page), { timeout: 10_000 }).toEqual(firstPage);
 		// Filter failing parts with the form; the URL carries the filter, and a reload keeps it.
 		await page.selectOption('#pf-result', 'fail');
 		await page.click('button:has-text("Apply")');
 		await page.waitForURL(/result=fail/);
 		const failing = posted.filter((p) => !p.pass).map((p) => p.serial);
-		expect((await serials(page)).sort()).toEqual([...failing].sort());
+		await expect.poll(async () => (await serials(page)).sort(), { timeout: 10_000 }).toEqual([...failing].sort());
 		await page.reload();
 		expect((await serials(page)).sort()).toEqual([...failing].sort());
 		expect(await page.locator('[data-parts-total]').getAttribute('data-parts-total')).toBe(String(failing.length));
@@ -113,15 +113,15 @@ describe('the lot page', () => {
 		expect(await page.locator('[data-certificate-link]').count()).toBe(0);
 		// A reason is required: an empty one is refused beside the field and changes nothing.
 		await page.click('button:has-text("Hold lot")');
-		await expect.poll(() => page.locator('#d-reason-err').textContent()).toContain('reason');
+		await expect.poll(() => page.locator('#d-reason-err').textContent(), { timeout: 10_000 }).toContain('reason');
 		expect(await page.locator('[data-disposition]').getAttribute('data-disposition')).toBe('pending');
 		await page.fill('#d-reason', 'C at 4 V near its upper limit on two stations');
 		await page.click('button:has-text("Hold lot")');
-		await expect.poll(() => page.locator('[data-disposition]').getAttribute('data-disposition')).toBe('held');
+		await expect.poll(() => page.locator('[data-disposition]').getAttribute('data-disposition'), { timeout: 10_000 }).toBe('held');
 		expect(await page.locator('[data-disposition-reason]').textContent()).toBe('C at 4 V near its upper limit on two stations');
 		await page.fill('#d-reason', 'Correlation study shows the stations agree');
 		await page.click('button:has-text("Release lot")');
-		await expect.poll(() => page.locator('[data-disposition]').getAttribute('data-disposition')).toBe('released');
+		await expect.poll(() => page.locator('[data-disposition]').getAttribute('data-disposition'), { timeout: 10_000 }).toBe('released');
 		const history = (await page.locator('[aria-labelledby=lot-audit-h]').textContent()) ?? '';
 		expect(history).toContain('hold');
 		expect(history).toContain('release');
@@ -138,7 +138,7 @@ describe('the lot page', () => {
 		await page.fill('input[name=to]', to);
 		await page.fill('input[name=contact]', 'Incoming inspection');
 		await page.click('button:has-text("E-mail certificate")');
-		await expect.poll(() => page.locator('[role=status]').allTextContents()).toContain(`The certificate is on its way to ${to}.`);
+		await expect.poll(() => page.locator('[role=status]').allTextContents(), { timeout: 15_000 }).toContain(`The certificate is on its way to ${to}.`);
 		await expect.poll(() => messageTo(to), { timeout: 30_000, interval: 500 }).not.toBeNull();
 		const pdf = pdfAttachment((await messageTo(to)) ?? '');
 		expect(pdf?.filename).toBe(`${line.lotNumber}-certificate.pdf`);

@@ -286,8 +286,11 @@ export async function lotCharacteristics(lotId: number, plan: SpecPlan): Promise
 	const characteristics = all.map((c): Characteristic => {
 		const spec = { ...(c.lsl === null ? {} : { lowerSpecLimit: c.lsl }), ...(c.usl === null ? {} : { upperSpecLimit: c.usl }) };
 		const hasSpec = c.lsl !== null || c.usl !== null;
-		const cap = hasSpec && c.values.length >= 2 ? capability(c.values, spec, { processInControl: inControl }) : null;
 		const mean = c.values.length ? c.values.reduce((a, v) => a + v, 0) / c.values.length : null;
+		// Spread below a part in 10⁹ of the mean is rounding, not variation: the indices would be astronomical.
+		const spread = mean === null || c.values.length < 2 ? 0 : Math.sqrt(c.values.reduce((a, v) => a + (v - mean) ** 2, 0) / (c.values.length - 1));
+		const flat = mean !== null && c.values.length >= 2 && spread <= 1e-9 * Math.abs(mean);
+		const cap = hasSpec && c.values.length >= 2 && !flat ? capability(c.values, spec, { processInControl: inControl }) : null;
 		return {
 			key: c.key,
 			label: c.label,
@@ -298,7 +301,15 @@ export async function lotCharacteristics(lotId: number, plan: SpecPlan): Promise
 			mean,
 			classes: histogramClasses(c.values),
 			capability: cap?.ok ? cap.value : null,
-			note: !hasSpec ? 'No spec limits for this characteristic' : cap && !cap.ok ? cap.error.message : cap ? null : 'Too few parts'
+			note: !hasSpec
+				? 'No spec limits for this characteristic'
+				: flat
+					? 'No measurable spread: every part has the same value'
+					: cap && !cap.ok
+						? cap.error.message
+						: cap
+							? null
+							: 'Too few parts'
 		};
 	});
 	return { characteristics, parts: rows.length };
