@@ -45,7 +45,7 @@ export default defineConfig({
 					include: ['tests/faults/**/*.test.ts'],
 					environment: 'node',
 					fileParallelism: false,
-					testTimeout: 180_000,
+					testTimeout: 300_000,
 					hookTimeout: 120_000
 				}
 			}
