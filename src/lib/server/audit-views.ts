@@ -21,6 +21,11 @@ type Row = { id: string; at: Date; actor: string; entity: string; entity_id: str
 
 export type AuditFilter = Pick<AuditQueryInput, 'entity' | 'actor' | 'from' | 'to'>;
 
+/** A time from the filter; a date-time without a zone (the browser's datetime-local) is UTC. */
+export function filterTime(text: string): Date {
+	return new Date(/T/.test(text) && !/(Z|[+-]\d\d:?\d\d)$/i.test(text) ? `${text}Z` : text);
+}
+
 /** The WHERE clause of a filter; the actor matches as a case-insensitive substring. */
 export function auditWhere(f: AuditFilter): { sql: string; replacements: Record<string, unknown> } {
 	const clauses: string[] = [];
@@ -35,11 +40,11 @@ export function auditWhere(f: AuditFilter): { sql: string; replacements: Record<
 	}
 	if (f.from) {
 		clauses.push('at >= :from');
-		replacements.from = new Date(f.from);
+		replacements.from = filterTime(f.from);
 	}
 	if (f.to) {
 		clauses.push('at <= :to');
-		replacements.to = new Date(f.to);
+		replacements.to = filterTime(f.to);
 	}
 	return { sql: clauses.length ? `WHERE ${clauses.join(' AND ')}` : '', replacements };
 }
