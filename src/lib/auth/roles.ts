@@ -27,6 +27,9 @@ export type Area =
 	| 'products'
 	| 'products.manage'
 	| 'admin'
+	| 'studies'
+	| 'studies.manage'
+	| 'audit'
 	| 'uploads'
 	| 'account';
 
@@ -49,6 +52,9 @@ export const ACCESS: Record<Area, readonly Role[]> = {
 	products: ENGINEERS,
 	'products.manage': ENGINEERS,
 	admin: ['admin'],
+	studies: ENGINEERS,
+	'studies.manage': ENGINEERS,
+	audit: ENGINEERS,
 	account: ALL,
 	/** Bench C–V files into a lot (engineers: bench parts count in the lot's yield). */
 	uploads: ENGINEERS
