@@ -27,7 +27,8 @@ export async function siteName(): Promise<string> {
 }
 
 const fmt = (v: number | null | undefined, digits = 4) => (v === null || v === undefined || !Number.isFinite(v) ? '—' : String(Number(v.toPrecision(digits))));
-const withCi = (e: { value: number; lower: number; upper: number } | null) => (e ? `${fmt(e.value, 3)} (${fmt(e.lower, 3)}–${fmt(e.upper, 3)})` : '—');
+// The index on one line and its 95 % interval on the next, so narrow columns do not break mid-number.
+const withCi = (e: { value: number; lower: number; upper: number } | null) => (e ? `${fmt(e.value, 3)}\n${fmt(e.lower, 3)} – ${fmt(e.upper, 3)}` : '—');
 
 function capabilityRows(chars: Characteristic[]): string[][] {
 	return chars.map((c) => {
