@@ -23,7 +23,13 @@ export const ResultPoint = z.object({
 });
 
 export const ResultUnit = z.object({
-	serial: z.string({ error: 'serial is required' }).trim().min(1, { error: 'serial is required' }).max(80),
+	// No control characters: PostgreSQL text cannot hold NUL, and none belongs in a serial.
+	serial: z
+		.string({ error: 'serial is required' })
+		.trim()
+		.min(1, { error: 'serial is required' })
+		.max(80)
+		.regex(/^[^\u0000-\u001f\u007f]*$/, { error: 'serial may not contain control characters' }),
 	testedAt: z.iso.datetime({ offset: true, error: 'testedAt must be an ISO 8601 time with a zone' }),
 	kind: z.enum(['production', 'reference'], { error: 'kind is production or reference' }).default('production'),
 	temperatureC: finite('temperatureC').min(-60).max(200).optional(),
@@ -44,6 +50,8 @@ export const ResultUnit = z.object({
 
 export const ResultsBody = z.object({
 	lot: LotNumber,
+	/** A measurement-system study's id: the units are that study's measurements (kind 'study', never counted in yield or charts). */
+	study: z.number({ error: 'study is a study id' }).int({ error: 'study is a study id' }).positive({ error: 'study is a study id' }).max(Number.MAX_SAFE_INTEGER).optional(),
 	units: z.array(ResultUnit).min(1, { error: 'send 1 to 500 units' }).max(500, { error: 'send 1 to 500 units' })
 });
 
