@@ -177,7 +177,8 @@ export function makePart(serial: string, biases: number[], relative = 0): Part {
 	};
 }
 
-export type Answer = { status: number; ms: number; sentAt: number; retryAfter: string | null; type: string; body: string } | { status: 0; ms: number; sentAt: number; error: string };
+/** One answer; status 0 with `error` when none came (a refused connection, a reset, the bound). */
+export type Answer = { status: number; ms: number; sentAt: number; retryAfter: string | null; type: string; body: string; error?: string };
 
 /** One request with a hard client-side bound: a hang becomes `status 0` with error "timeout". */
 export async function timedFetch(url: string, init: RequestInit, boundMs: number): Promise<Answer> {
@@ -189,7 +190,7 @@ export async function timedFetch(url: string, init: RequestInit, boundMs: number
 	} catch (e) {
 		const name = e instanceof Error ? e.name : '';
 		const error = name === 'TimeoutError' ? 'timeout' : e instanceof Error ? String(e.cause instanceof Error ? e.cause.message : e.message) : String(e);
-		return { status: 0, ms: Date.now() - sentAt, sentAt, error };
+		return { status: 0, ms: Date.now() - sentAt, sentAt, retryAfter: null, type: '', body: '', error };
 	}
 }
 
@@ -233,7 +234,7 @@ export async function runStation(o: {
 				break;
 			}
 			if (a.status !== 0 && a.status < 500 && a.status !== 429) break; // final: the test reports it
-			const asked = a.status !== 0 && a.retryAfter ? Number(a.retryAfter) * 1000 : 100;
+			const asked = a.retryAfter ? Number(a.retryAfter) * 1000 : 100;
 			await new Promise((r) => setTimeout(r, Math.min(Number.isFinite(asked) ? asked : 100, o.maxWaitMs)));
 		}
 	}

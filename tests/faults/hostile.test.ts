@@ -25,7 +25,7 @@ let app: Instance;
 let line: FaultLine;
 let alarmId = 0;
 
-type Totals = Record<string, number>;
+type Totals = Record<string, string>;
 async function totals(): Promise<Totals> {
 	const rows = await sql<Record<string, string>>(
 		app.dbUrl,
@@ -35,7 +35,7 @@ async function totals(): Promise<Totals> {
 		        (SELECT count(*) FROM audit_entries) AS audit, (SELECT count(*) FROM alarms) AS alarms,
 		        (SELECT string_agg(status, ',' ORDER BY id) FROM alarms) AS alarm_status, (SELECT string_agg(status, ',' ORDER BY id) FROM lots) AS lot_status`
 	);
-	return Object.fromEntries(Object.entries(rows[0] ?? {}).map(([k, v]) => [k, v]));
+	return { ...(rows[0] ?? {}) };
 }
 
 function headersFor(h: Hostile, token: string): Record<string, string> {
@@ -209,7 +209,7 @@ describe('hostile payloads', () => {
 				return true;
 			}
 		};
-		const sets = [
+		const sets: { name: string; url: string; method: string; schema: typeof CalibrationBody | typeof LotStatusBody | typeof AlarmChangeBody; make: () => string; headers: Record<string, string> }[] = [
 			{ name: 'calibrations', url: `${app.url}/api/v1/calibrations`, method: 'POST', schema: CalibrationBody, make: calBody, headers: { authorization: `Bearer ${station.token}` } },
 			{ name: 'lot PATCH', url: `${app.url}/api/v1/lots/${line.lotNumber}`, method: 'PATCH', schema: LotStatusBody, make: () => hostileSmallBody(rand, lotValid), headers: { cookie: line.cookie, origin: app.url } },
 			{ name: 'alarm PATCH', url: `${app.url}/api/v1/alarms/${alarmId}`, method: 'PATCH', schema: AlarmChangeBody, make: () => hostileSmallBody(rand, alarmValid), headers: { cookie: line.cookie, origin: app.url } }
