@@ -110,6 +110,11 @@ describe('bench uploads over HTTP', () => {
 		expect((await lotTested(line.lotNumber)).tested).toBe(before.tested + 5);
 		const state = await fetch(`${baseUrl()}/api/v1/uploads/${s.upload.id}`, { headers: { cookie: await cookieOnce('engineer') } });
 		expect(((await state.json()) as { upload: { status: string } }).upload.status).toBe('imported');
+		// The import is audited once: who, file name, lot and count.
+		const trail = await fetch(`${baseUrl()}/api/v1/audit?entity=upload&limit=500`, { headers: { cookie: await cookieOnce('engineer') } });
+		const entries = ((await trail.json()) as { entries: { entityId: string; actor: string; action: string; after: { fileName: string; lot: string; parts: number } }[] }).entries;
+		const mine = entries.filter((e) => e.entityId === String(s.upload.id));
+		expect(mine.map((e) => [e.action, e.actor, e.after.fileName, e.after.lot, e.after.parts])).toEqual([['import', 'noor.haddad@corvane.example', 'good bench.csv', line.lotNumber, 5]]);
 	});
 
 	test('a bench part reads back in SI with its fit and no calibration', async () => {
