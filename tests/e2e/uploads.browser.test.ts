@@ -127,6 +127,9 @@ describe('bench upload, station trends and part page in Chromium', () => {
 		expect(await page.locator('table[aria-label=Sweep] tbody tr').count()).toBe(BIASES.length);
 		expect(await page.locator('table[aria-label=Sweep] th').allTextContents()).toEqual(['Bias (V)', 'Resonance', 'Bandwidth', 'Capacitance (pF)', 'Q']);
 		expect(await page.locator('[data-cv-overlay]').count()).toBe(1);
+		// The fitted model is drawn as its own dashed line, and the caption still counts one part.
+		expect(await page.locator('[data-cv-overlay] [data-fit-curve]').count()).toBe(1);
+		expect(await page.locator('[data-cv-overlay] figcaption').textContent()).toMatch(/^\s*1 part\b/);
 		expect(await page.locator('[data-fit=cj0]').textContent()).toMatch(/\d+\.\d{3} pF/);
 		await shot(page, 'part-1920');
 		await page.setViewportSize(SIZES[0]);
