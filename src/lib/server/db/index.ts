@@ -15,7 +15,8 @@ export function db(): Sequelize {
 		logging: false,
 		// Bounded waits, so a database that is away gives a 503 within seconds instead of a hang:
 		// a connection attempt gives up after 3 s, waiting for a free pooled connection after 4 s,
-		// and one statement after 30 s (no request of ours needs that long).
+		// and one statement after 30 s (no request of ours needs that long; a migration that does
+		// runs its statement in a transaction that starts with SET LOCAL statement_timeout).
 		pool: { max: 10, min: 0, idle: 10_000, acquire: 4_000 },
 		dialectOptions: { connectionTimeoutMillis: 3_000, statement_timeout: 30_000, keepAlive: true },
 		define: { underscored: true, timestamps: false }
