@@ -99,7 +99,7 @@ export const handleError: HandleServerError = ({ error, event, status, message }
 	if (isDatabaseUnavailable(error)) {
 		event.locals.databaseUnavailable = true;
 		console.error(`[biasline] database unavailable on ${event.request.method} ${event.url.pathname}: ${error instanceof Error ? error.message : String(error)}`);
-		return { message: unavailableDetail, unavailable: true };
+		return { message: 'The database cannot be reached at the moment. This page works again as soon as it is back, usually within seconds.', unavailable: true };
 	}
 	const errorId = randomUUID();
 	console.error(`[biasline] error ${errorId} on ${event.request.method} ${event.url.pathname}:`, error);

@@ -2,9 +2,12 @@
 // The public contract (shared API contract, Conventions): 503 with Retry-After while the database is
 // unavailable, never a 500; here also never a hang (every answer within BOUND_MS); and the app
 // recovers by itself once the database is back, without a restart.
+import fs from 'node:fs';
 import path from 'node:path';
+import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { ensureCluster } from '../../src/ops/lib.mjs';
+import { launch } from '../e2e/helpers';
 import { faultsDir, makePart, runStation, setUpFaultLine, startInstance, storedCounts, timedFetch, type Answer, type BatchLog, type FaultLine, type Instance } from './harness';
 
 const BOUND_MS = 5_000;
@@ -12,13 +15,16 @@ type Cluster = Awaited<ReturnType<typeof ensureCluster>>;
 let cluster: Cluster;
 let app: Instance;
 let line: FaultLine;
+let browser: Browser;
 
 beforeAll(async () => {
+	browser = await launch();
 	cluster = await ensureCluster({ dataDir: path.join(faultsDir(), 'pg-outage') });
 	app = await startInstance({ name: 'outage', adminUrl: cluster.url('postgres') });
 	line = await setUpFaultLine(app.url, { prefix: 'OUT', stations: 3 });
 });
 afterAll(async () => {
+	await browser?.close();
 	await cluster?.start().catch(() => {});
 	await app?.close();
 	cluster?.stop();
@@ -104,7 +110,19 @@ describe('PostgreSQL stopped during the load', () => {
 
 		await cluster.stopAsync();
 		const downFrom = Date.now();
-		await new Promise((r) => setTimeout(r, 4000));
+		// What a person sees meanwhile: the error page, in Chromium (screenshot beside the logs).
+		const context = await browser.newContext({ viewport: { width: 1366, height: 768 } });
+		const [name = '', value = ''] = line.cookie.split(/=(.*)/s);
+		await context.addCookies([{ name, value, url: app.url }]);
+		const page = await context.newPage();
+		const shown = await page.goto(`${app.url}/floor`);
+		expect(shown?.status()).toBe(503);
+		expect(await page.locator('h1').textContent()).toContain('Back in a moment');
+		const shots = path.join(faultsDir(), 'screenshots');
+		fs.mkdirSync(shots, { recursive: true });
+		await page.screenshot({ path: path.join(shots, 'database-unavailable-1366.png') });
+		await context.close();
+		await new Promise((r) => setTimeout(r, Math.max(0, downFrom + 4000 - Date.now())));
 		const downUntil = Date.now();
 		await cluster.start();
 		const upAt = Date.now();
