@@ -70,11 +70,12 @@ if (only.includes('ingest') || only.includes('live') || soakMin) {
 	process.env.BIASLINE_DATA_DIR = soakMin ? path.join(benchDir, 'soak') : benchDir;
 	fs.mkdirSync(process.env.BIASLINE_DATA_DIR, { recursive: true });
 	const dir = process.env.BIASLINE_DATA_DIR;
+	// Built first: a failed build exits before a cluster is started that nobody would stop.
+	const buildDir = path.join(dir, 'build');
+	ensureBuild(buildDir);
 	const cluster = await ensureCluster();
 	const dbName = `biasline_bench_${process.pid}`;
 	await createDatabase(cluster.url('postgres'), dbName);
-	const buildDir = path.join(dir, 'build');
-	ensureBuild(buildDir);
 	const port = await freePort();
 	const admin = { email: 'bench@corvane.example', password: randomBytes(12).toString('base64url') };
 	const heapFile = path.join(dir, 'heap.jsonl');
