@@ -80,27 +80,48 @@ async function sendAll(requests: { url: string; method: string; headers: Record<
 	return { statuses, bad };
 }
 
-/** A large body through node:http, so the answer is read even when the server stops reading early. */
-function bigPost(path: string, headers: Record<string, string>, bytes: number, chunked: boolean): Promise<number> {
+/**
+ * A large body through node:http, read as the server answers: the server refuses early and closes
+ * the connection while the body is still being sent, so a write may fail with EPIPE/ECONNRESET
+ * before the answer is read (a race in TCP, not an answer). Such a try is repeated, up to three.
+ */
+async function bigPost(path: string, headers: Record<string, string>, bytes: number, chunked: boolean): Promise<number> {
+	for (let attempt = 1; ; attempt++) {
+		try {
+			return await bigPostOnce(path, headers, bytes, chunked);
+		} catch (e) {
+			const code = e instanceof Error && 'code' in e ? String(e.code) : '';
+			if (attempt >= 3 || !['EPIPE', 'ECONNRESET'].includes(code)) throw e;
+		}
+	}
+}
+
+function bigPostOnce(path: string, headers: Record<string, string>, bytes: number, chunked: boolean): Promise<number> {
 	const u = new URL(path, app.url);
 	return new Promise((resolve, reject) => {
+		let answered = false;
 		const req = http.request(
-			{ host: u.hostname, port: u.port, path: u.pathname, method: 'POST', headers: { ...headers, ...(chunked ? {} : { 'content-length': String(bytes) }) } },
+			{ host: u.hostname, port: u.port, path: u.pathname, method: 'POST', agent: false, headers: { ...headers, ...(chunked ? {} : { 'content-length': String(bytes) }) } },
 			(res) => {
+				answered = true;
 				res.resume();
 				resolve(res.statusCode ?? 0);
+				req.destroy();
 			}
 		);
-		req.on('error', (e) => reject(e));
+		req.on('error', (e) => {
+			if (!answered) reject(e);
+		});
 		req.setTimeout(30_000, () => req.destroy(new Error('timeout')));
 		const chunk = Buffer.alloc(64 * 1024, 'x');
 		let sent = 0;
+		// One chunk per turn of the event loop, so an early answer is read before the next write.
 		const pump = () => {
-			while (sent < bytes) {
-				sent += chunk.length;
-				if (!req.write(chunk)) return void req.once('drain', pump);
-			}
-			req.end();
+			if (answered || req.destroyed) return;
+			if (sent >= bytes) return void req.end();
+			sent += chunk.length;
+			if (req.write(chunk)) setImmediate(pump);
+			else req.once('drain', pump);
 		};
 		req.write('{"lot":"LT-x","units":[{"serial":"');
 		pump();
