@@ -269,8 +269,8 @@ describe('stations and lots in Chromium', () => {
 		await page.waitForURL(new RegExp(`/lots/${LOT}$`));
 		expect(await page.locator('[data-figure=Quantity]').textContent()).toBe('1,200');
 		expect(await page.locator('[data-figure=Tested]').textContent()).toBe('5');
-		expect(await page.locator('section[aria-labelledby=units-h] tbody tr').count()).toBe(5);
-		expect(await page.locator('section[aria-labelledby=units-h] thead').textContent()).toContain('C at 25 V (pF)');
+		expect(await page.locator('[data-parts-table] tbody tr').count()).toBe(5);
+		expect(await page.locator('[data-parts-table] thead').textContent()).toContain('C at 25 V (pF)');
 		await page.context().close();
 	});
 });
