@@ -5,7 +5,7 @@
 // are measured side by side in one run (ingest beside its HTTP and storage ceilings).
 //
 //   npm run bench                      core, control rules, ingest + ceilings, stream, queries at 1 M parts
-//   npm run bench -- --only ingest     only some parts: core, spc, ingest, live (comma-separated)
+//   npm run bench -- --only ingest     only some parts: core, spc, ingest, rules, live (comma-separated)
 //   npm run bench -- --keep           keep the database (and the cluster running) afterwards, to
 //                                      look into a slow query with EXPLAIN; drop it by hand
 //   npm run bench -- --soak 30         only the soak, for that many minutes (its own data folder
@@ -27,7 +27,7 @@ const soakArg = flag('--soak');
 const soakMin = soakArg === null ? 0 : Number(soakArg);
 if (soakArg !== null && !(soakMin > 0)) fail('--soak takes the minutes, e.g. --soak 30');
 const keep = args.includes('--keep');
-const only = (flag('--only') ?? 'core,spc,ingest,live').split(',');
+const only = (flag('--only') ?? 'core,spc,ingest,rules,live').split(',');
 if (soakMin) only.length = 0;
 
 ensureDependencies();
@@ -65,7 +65,7 @@ function bench(/** @type {string} */ title, /** @type {string} */ file, /** @typ
 if (only.includes('core')) bench('Measurement core: convert + fit + judge, matched sets', 'tests/bench/core.ts', '`npx tsx tests/bench/core.ts`');
 if (only.includes('spc')) bench('Control rules: one step of a chart with every rule enabled', 'tests/bench/spc-step.ts', '`npx tsx tests/bench/spc-step.ts`');
 
-if (only.includes('ingest') || only.includes('live') || soakMin) {
+if (only.includes('ingest') || only.includes('live') || only.includes('rules') || soakMin) {
 	// The live server: its own throwaway database on the bench's cluster, the built app, no demo.
 	process.env.BIASLINE_DATA_DIR = soakMin ? path.join(benchDir, 'soak') : benchDir;
 	fs.mkdirSync(process.env.BIASLINE_DATA_DIR, { recursive: true });
@@ -123,6 +123,7 @@ if (only.includes('ingest') || only.includes('live') || soakMin) {
 		};
 		const onServer = '`npm run bench` (the app built and started on a throwaway database of the private cluster';
 		if (only.includes('ingest')) bench('Ingest beside its ceilings', 'tests/bench/ingest.ts', `${onServer}; \`npx tsx tests/bench/ingest.ts\` with BENCH_URL, BENCH_DATABASE_URL)`, env);
+		if (only.includes('rules')) bench('Rule cost inside a post at 1 M parts (every rule against none)', 'tests/bench/rule-cost.ts', `${onServer}; \`npx tsx tests/bench/rule-cost.ts\` with BENCH_URL, BENCH_DATABASE_URL)`, env);
 		if (only.includes('live')) bench('Live server: bin answers, stream, control rules and queries at 1 M parts', 'tests/bench/live.ts', `${onServer}; \`npx tsx tests/bench/live.ts\` with BENCH_URL, BENCH_DATABASE_URL)`, env);
 		if (soakMin) bench(`Soak (${soakMin} min)`, 'tests/bench/soak.ts', `\`npm run bench -- --soak ${soakMin}\` (\`npx tsx tests/bench/soak.ts\` on the built app)`, { ...env, BENCH_SOAK_MIN: String(soakMin) });
 	} finally {

@@ -164,9 +164,9 @@ async function storageCeiling(n: number, unitsOnly: boolean) {
 					const perBin = new Map<number, number>();
 					for (const r of records) perBin.set(Number(r.bin), (perBin.get(Number(r.bin)) ?? 0) + 1);
 					await c.query(
-						`INSERT INTO lot_bin_counts (lot_id, bin, n) SELECT $1, bin, n FROM jsonb_to_recordset($2::jsonb) AS x(bin smallint, n bigint)
-						 ON CONFLICT (lot_id, bin) DO UPDATE SET n = lot_bin_counts.n + EXCLUDED.n`,
-						[records[0]?.lot_id, JSON.stringify([...perBin].map(([bin, n]) => ({ bin, n })))]
+						`INSERT INTO lot_bin_counts (lot_id, bin, shard, n) SELECT $1, bin, $3, n FROM jsonb_to_recordset($2::jsonb) AS x(bin smallint, n bigint)
+						 ON CONFLICT (lot_id, bin, shard) DO UPDATE SET n = lot_bin_counts.n + EXCLUDED.n`,
+						[records[0]?.lot_id, JSON.stringify([...perBin].map(([bin, n]) => ({ bin, n }))), sid]
 					);
 					const events: Record<string, unknown>[] = records.map((r) => ({ type: 'unit', station_id: sid, lot_id: r.lot_id, payload: { serial: r.serial, lot: line.lot, station: s.name, bin: r.bin, pass: r.pass, testedAt: r.tested_at, kind: r.kind } }));
 					events.push({ type: 'yield', station_id: sid, lot_id: records[0]?.lot_id, payload: { station: s.name, lot: line.lot } });

@@ -105,8 +105,8 @@ async function fillMillion(lot: string) {
 		);
 		await client.query('UPDATE charts SET point_count = point_count + $2 WHERE station_id = $1', [stationId, after - before - 1]);
 		await client.query(
-			`INSERT INTO lot_bin_counts (lot_id, bin, n) SELECT lot_id, bin, count(*) FROM units WHERE id > $1 AND id < $2 GROUP BY lot_id, bin
-			 ON CONFLICT (lot_id, bin) DO UPDATE SET n = lot_bin_counts.n + EXCLUDED.n`,
+			`INSERT INTO lot_bin_counts (lot_id, bin, shard, n) SELECT lot_id, bin, 0, count(*) FROM units WHERE id > $1 AND id < $2 GROUP BY lot_id, bin
+			 ON CONFLICT (lot_id, bin, shard) DO UPDATE SET n = lot_bin_counts.n + EXCLUDED.n`,
 			[before, after]
 		);
 		for (const ix of secondary.rows) await client.query(ix.indexdef);

@@ -11,6 +11,8 @@ const base = process.env.BENCH_URL ?? '';
 if (!base) throw new Error('BENCH_URL is not set: run npm run bench');
 const POSTS = Number(process.env.BENCH_RULE_POSTS ?? 400);
 const FILL = Number(process.env.BENCH_RULE_FILL ?? 1_000_000);
+// Points added to each chart: far past any rule window (15 points), so the history is long.
+const CHART_FILL = Number(process.env.BENCH_RULE_CHART_FILL ?? 100_000);
 const pF = 1e-12;
 const FIXTURE = { inductanceH: 100e-6, strayF: 3 * pF, blockingF: 100e-9, arrangement: 'single' as const };
 const BIASES = [1, 2, 3, 4, 6, 8, 15, 25];
@@ -98,9 +100,9 @@ async function fill(lots: string[]) {
 				await client.query(
 					`INSERT INTO chart_points (chart_id, seq, unit_id, value, at, limits_version)
 					 SELECT $1, $2 + g, (SELECT min(id) FROM units), 26.5, now(), 1 FROM generate_series(0, $3 - 1) g`,
-					[c.id, c.point_count, per]
+					[c.id, c.point_count, CHART_FILL]
 				);
-				await client.query('UPDATE charts SET point_count = point_count + $2 WHERE id = $1', [c.id, per]);
+				await client.query('UPDATE charts SET point_count = point_count + $2 WHERE id = $1', [c.id, CHART_FILL]);
 			}
 		}
 		await client.query('ANALYZE units; ANALYZE chart_points;');
@@ -127,7 +129,7 @@ for (let i = 0; i < POSTS; i++) {
 }
 const med = (xs: { ms: number }[]) => pct(xs.map((x) => x.ms), 50);
 const added = med(all) - med(none);
-console.log(`${FILL.toLocaleString('en-US')} parts stored (filled in SQL in ${seconds.toFixed(0)} s), then ${POSTS} single 8-point posts to each product, alternating; 9 charts per product.`);
+console.log(`${FILL.toLocaleString('en-US')} more parts stored and ${CHART_FILL.toLocaleString('en-US')} more points on each chart (filled in SQL in ${seconds.toFixed(0)} s), then ${POSTS} single 8-point posts to each product, alternating; 9 charts per product.`);
 console.log('');
 console.log('| product | bin answer p50 | p95 | rule stepping in the server (Server-Timing spc) p50 |');
 console.log('| --- | --- | --- | --- |');

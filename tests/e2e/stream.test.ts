@@ -1,7 +1,8 @@
+import { randomUUID } from 'node:crypto';
 import { beforeAll, describe, expect, test } from 'vitest';
 import { baseUrl, baseUrlB, cookieOnce } from './helpers';
-import { setUpLine, type TestLine } from './line';
-import { pF } from './physics';
+import { jsonInit, setUpLine, TEST_FIXTURE, type TestLine } from './line';
+import { pF, referenceReadings } from './physics';
 
 // The live stream of the contract: server-sent events (WHATWG HTML, "Server-sent events":
 // fields `id`, `event`, `data`, blank line ends an event; `Last-Event-ID` on reconnect).
@@ -123,6 +124,58 @@ describe('live stream', () => {
 		expect(y).toMatchObject({ lot: own.lotNumber, station: own.stationName, lotTested: 8, lotPassed: 6, stationWindow: 8 });
 		expect(y?.lotYieldPct).toBeCloseTo(75, 12);
 		expect(y?.stationYieldPct).toBeCloseTo(75, 12);
+	});
+
+	test('ten stations posting to one lot at once: every event arrives once and in order, the lot counts every part once, yield events never overcount', async () => {
+		const own = await setUpLine({ prefix: 'STM', biases: [1, 4], plan: { points: [{ biasV: 1, minF: 20 * pF, maxF: 35 * pF }, { biasV: 4 }] } });
+		const admin = await cookieOnce('admin');
+		const tokens: string[] = [own.token];
+		for (let i = 1; i < 10; i++) {
+			const st = await fetch(`${baseUrl()}/api/v1/stations`, jsonInit(admin, 'POST', { name: `${own.stationName}-${i}`, fixture: TEST_FIXTURE }));
+			expect(st.status).toBe(201);
+			const token = ((await st.json()) as { token: string }).token;
+			const cal = await fetch(`${baseUrl()}/api/v1/calibrations`, {
+				method: 'POST',
+				headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
+				body: JSON.stringify({ references: referenceReadings(TEST_FIXTURE) })
+			});
+			expect(cal.status).toBe(201);
+			tokens.push(token);
+		}
+		// Each station posts 3 batches of 4 parts, one of them failing (0.2× the nominal capacitance).
+		const postAs = async (token: string, s: number, b: number) => {
+			const parts = [0, 1, 2, 3].map((k) => ({ ...own.part(k === 3 ? -0.8 : 0), serial: `${own.lotNumber}-S${s}-B${b}-${k}` }));
+			const res = await fetch(`${baseUrl()}/api/v1/results`, {
+				method: 'POST',
+				headers: { 'content-type': 'application/json', authorization: `Bearer ${token}`, 'idempotency-key': randomUUID() },
+				body: JSON.stringify({ lot: own.lotNumber, units: parts })
+			});
+			expect(res.status).toBe(201);
+		};
+		const events = await collect(`/api/v1/stream?lot=${own.lotNumber}`, {
+			onOpen: async () => {
+				await Promise.all(tokens.map(async (token, s) => {
+					for (let b = 0; b < 3; b++) await postAs(token, s, b);
+				}));
+			},
+			until: (es) => es.filter((e) => e.event === 'unit').length >= 120 && es.filter((e) => e.event === 'yield').length >= 30,
+			timeoutMs: 20_000
+		});
+		// Concurrent posts commit in their own order, not in the order of their event ids: the
+		// stream still delivers every event once, in id order.
+		const units = events.filter((e) => e.event === 'unit');
+		expect(units.length).toBe(120);
+		expect(new Set(units.map((e) => e.data.serial)).size).toBe(120);
+		expect(events.map((e) => e.id)).toEqual([...events.map((e) => e.id)].sort((a, b) => a - b));
+		const lot = (await (await fetch(`${baseUrl()}/api/v1/lots/${own.lotNumber}`, { headers: { cookie } })).json()) as { tested: number; passed: number; bins: Record<string, number> };
+		expect(lot.tested).toBe(120);
+		expect(lot.passed).toBe(90);
+		// A yield event counts what was committed when its post wrote: never more than the lot
+		// holds, and at the end short by at most the other nine stations' batches still in flight
+		// (each station has one post at a time). The floor reads exact figures from its API.
+		const tested = events.filter((e) => e.event === 'yield').map((e) => Number(e.data.lotTested));
+		expect(Math.max(...tested)).toBeLessThanOrEqual(120);
+		expect(Math.max(...tested)).toBeGreaterThanOrEqual(120 - 9 * 4);
 	});
 
 	test('an unknown lot in ?lot= is a 404', async () => {

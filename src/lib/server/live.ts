@@ -3,7 +3,7 @@
 // hands them to the streams open on this instance.
 import pg from 'pg';
 import { settings } from './env';
-import { EVENT_CHANNEL, eventsSince, latestEventId, pruneEvents, type StoredEvent } from './events';
+import { EVENT_CHANNEL, eventsPage, latestEventId, pruneEvents, type StoredEvent } from './events';
 
 export type Subscriber = { accepts: (e: StoredEvent) => boolean; push: (e: StoredEvent) => void; close: () => void };
 
@@ -17,6 +17,9 @@ class LiveHub {
 	#again = false;
 	#stopped = false;
 	#retries = 0;
+	/** A missing id after `after`, first seen when transactions before `horizon` could still hold it. */
+	#gap: { after: number; horizon: bigint } | null = null;
+	#recheck: ReturnType<typeof setTimeout> | null = null;
 	#prune: ReturnType<typeof setInterval> | null = null;
 
 	get lastId(): number {
@@ -80,19 +83,44 @@ class LiveHub {
 		this.#pulling = true;
 		try {
 			let page: StoredEvent[];
+			let waiting = false;
 			do {
 				this.#again = false;
-				page = await eventsSince(this.#lastId, { limit: PAGE });
+				const read = await eventsPage(this.#lastId, PAGE);
+				page = read.events;
 				for (const e of page) {
+					// Ids are drawn when a transaction writes its events, but transactions commit in
+					// their own order: a missing lower id may still be on its way. Wait until every
+					// transaction that was running when the gap was first seen has ended; if the id
+					// is still missing then, its transaction rolled back and the gap is for good.
+					if (e.id !== this.#lastId + 1) {
+						if (this.#gap?.after !== this.#lastId) this.#gap = { after: this.#lastId, horizon: read.xmax };
+						if (read.xmin < this.#gap.horizon) {
+							waiting = true;
+							break;
+						}
+					}
+					this.#gap = null;
 					this.#lastId = e.id;
 					for (const s of this.#subscribers) if (s.accepts(e)) s.push(e);
 				}
-			} while (this.#again || page.length === PAGE);
+			} while (!waiting && (this.#again || page.length === PAGE));
+			// A commit announces itself; a rollback does not, so look again shortly.
+			if (waiting) this.#recheckSoon();
 		} catch {
 			// A failed read is retried by the next notification or reconnect.
 		} finally {
 			this.#pulling = false;
 		}
+	}
+
+	#recheckSoon(): void {
+		if (this.#recheck || this.#stopped) return;
+		this.#recheck = setTimeout(() => {
+			this.#recheck = null;
+			void this.#pull();
+		}, 50);
+		this.#recheck.unref();
 	}
 
 	subscribe(s: Subscriber): () => void {

@@ -103,7 +103,7 @@ type DbPart = {
 /** Exact totals from the ingest's per-lot bin counters (production parts), when the filters allow. */
 async function countedTotal(lotId: number, q: PartsQueryValue): Promise<number | null> {
 	if (q.kind !== 'production' || q.station || q.serial) return null;
-	const rows = await db().query<{ bin: number; n: string }>('SELECT bin, n FROM lot_bin_counts WHERE lot_id = :lotId', {
+	const rows = await db().query<{ bin: number; n: string }>('SELECT bin, sum(n) AS n FROM lot_bin_counts WHERE lot_id = :lotId GROUP BY bin', {
 		replacements: { lotId },
 		type: QueryTypes.SELECT
 	});

@@ -146,7 +146,7 @@ export async function lotSummary(number: string): Promise<LotSummary | null> {
 	if (!lot) return null;
 	// Counters kept by the ingest (lot_bin_counts), so a lot of a million parts reads a few rows.
 	const rows = await db().query<{ bin: number; n: string }>(
-		`SELECT bin, n FROM lot_bin_counts WHERE lot_id = :id ORDER BY bin`,
+		`SELECT bin, sum(n) AS n FROM lot_bin_counts WHERE lot_id = :id GROUP BY bin ORDER BY bin`,
 		{ replacements: { id: lot.id }, type: QueryTypes.SELECT }
 	);
 	const bins: Record<string, number> = {};

@@ -256,13 +256,15 @@ export async function ingestResults(
 				     cj0_f float8, vj_v float8, m float8, cp_f float8, fit_rms_pct float8, failures jsonb)),
 				 ${chartWriteCtes({ points: '$2', charts: '$3', limits: '$4' }).join(',\n')},
 				 bins AS (
-				   INSERT INTO lot_bin_counts (lot_id, bin, n) SELECT $5, bin, n FROM jsonb_to_recordset(CAST($6 AS jsonb)) AS x(bin smallint, n bigint)
-				   ON CONFLICT (lot_id, bin) DO UPDATE SET n = lot_bin_counts.n + EXCLUDED.n RETURNING bin, n),
+				   INSERT INTO lot_bin_counts (lot_id, bin, shard, n) SELECT $5, bin, $8, n FROM jsonb_to_recordset(CAST($6 AS jsonb)) AS x(bin smallint, n bigint)
+				   ON CONFLICT (lot_id, bin, shard) DO UPDATE SET n = lot_bin_counts.n + EXCLUDED.n RETURNING bin, n),
 				 st AS (UPDATE stations SET last_seen_at = $7, current_lot_id = $5 WHERE id = $8),
-				 -- The lot's counters after this batch: the upserted bins as returned, the others as read.
+				 -- The lot's counters after this batch: this station's upserted rows as returned, every
+				 -- other row (other stations' shards, this station's other bins) as read.
 				 lot_now AS (
 				   SELECT bin, n FROM bins
-				   UNION ALL SELECT b.bin, b.n FROM lot_bin_counts b WHERE b.lot_id = $5 AND NOT EXISTS (SELECT 1 FROM bins WHERE bins.bin = b.bin)),
+				   UNION ALL SELECT b.bin, b.n FROM lot_bin_counts b
+				     WHERE b.lot_id = $5 AND NOT (b.shard = $8 AND EXISTS (SELECT 1 FROM bins WHERE bins.bin = b.bin))),
 				 -- The station's rolling window: this batch's production parts, then the stored ones.
 				 recent AS (
 				   SELECT pass FROM (

@@ -246,8 +246,8 @@ export async function importUpload(actor: Actor, id: number, now: Date, onProgre
 			}
 			const bins = [...perBin].sort((a, b) => a[0] - b[0]).map(([bin, count]) => ({ bin, count }));
 			await db().query(
-				`INSERT INTO lot_bin_counts (lot_id, bin, n) SELECT :lotId, bin, count FROM jsonb_to_recordset(CAST(:rows AS jsonb)) AS x(bin smallint, count bigint)
-				 ON CONFLICT (lot_id, bin) DO UPDATE SET n = lot_bin_counts.n + EXCLUDED.n`,
+				`INSERT INTO lot_bin_counts (lot_id, bin, shard, n) SELECT :lotId, bin, 0, count FROM jsonb_to_recordset(CAST(:rows AS jsonb)) AS x(bin smallint, count bigint)
+				 ON CONFLICT (lot_id, bin, shard) DO UPDATE SET n = lot_bin_counts.n + EXCLUDED.n`,
 				{ replacements: { lotId: lot.id, rows: JSON.stringify(bins) }, transaction: t }
 			);
 			await db().query("UPDATE uploads SET status = 'imported', imported_by = :by, imported_at = :now WHERE id = :id", { replacements: { by: actor.userId, now, id }, transaction: t });

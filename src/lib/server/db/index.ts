@@ -17,7 +17,9 @@ export function db(): Sequelize {
 		// a connection attempt gives up after 3 s, waiting for a free pooled connection after 4 s,
 		// and one statement after 30 s (no request of ours needs that long; a migration that does
 		// runs its statement in a transaction that starts with SET LOCAL statement_timeout).
-		pool: { max: 10, min: 0, idle: 10_000, acquire: 4_000 },
+		// 20 connections: a 20-station line posting at once gets one each instead of queueing (two
+		// instances use 40 of the private cluster's 200; size max_connections for more instances).
+		pool: { max: 20, min: 0, idle: 10_000, acquire: 4_000 },
 		dialectOptions: { connectionTimeoutMillis: 3_000, statement_timeout: 30_000, keepAlive: true },
 		define: { underscored: true, timestamps: false }
 	});

@@ -67,12 +67,16 @@ const handler: RequestHandler = async ({ locals, url, request }) => {
 			request.signal.addEventListener('abort', () => cleanup());
 			write('retry: 2000\n: connected\n\n');
 			// Replay what the client missed, then hand over to the live feed without gaps or repeats.
+			// The replay stops where the hub has delivered (ids past it may still have lower ids in
+			// flight); the hub hands over from there, in order.
 			if (resumeFrom !== null) {
+				const upTo = hub.lastId;
 				for (;;) {
-					const page = await eventsSince(last, { stationId: filter.stationId, lotId: filter.lotId, limit: 2000 });
+					const page = await eventsSince(last, { stationId: filter.stationId, lotId: filter.lotId, limit: 2000, upTo });
 					for (const e of page) send(e);
 					if (page.length < 2000 || !open) break;
 				}
+				last = Math.max(last, upTo);
 			}
 			replaying = false;
 			for (const e of buffered) send(e);
