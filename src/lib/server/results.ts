@@ -30,7 +30,7 @@ export type IngestOutcome =
  * Where a post's time went, in ms: the context read, judging, the claim-and-lock statement, rule
  * stepping, the write statement, and the rest of the transaction (alarms, mail, commit).
  */
-export type IngestTimings = { contextMs: number; judgeMs: number; lockMs: number; spcMs: number; writeMs: number; commitMs: number };
+export type IngestTimings = { contextMs: number; judgeMs: number; lockMs: number; spcMs: number; writeMs: number; commitMs: number; violations: number };
 
 /** The hash that decides "the same body": SHA-256 of the request's bytes as sent. */
 export function requestHash(rawBody: string): string {
@@ -201,6 +201,7 @@ export async function ingestResults(
 	let lockMs = 0;
 	let writeMs = 0;
 	let writtenAt = 0;
+	let violations = 0;
 	try {
 		await db().transaction(async (t) => {
 			// One statement: claim the key (a concurrent post with the same key waits here until
@@ -242,6 +243,7 @@ export async function ingestResults(
 				payload: { serial: r.serial, lot: lot.number, station: station.name, bin: r.bin, pass: r.pass, testedAt: r.tested_at, kind: r.kind }
 			}));
 			// With no alarm to open, the events go out in the same statement as the parts.
+			violations = writes.pending.length;
 			const eventsHere = writes.pending.length === 0;
 			const writeStart = performance.now();
 			const [written] = await db().query<{ lot_tested: string; lot_passed: string; window_n: string; window_passed: string }>(
@@ -354,7 +356,7 @@ export async function ingestResults(
 		throw e;
 	}
 	const commitMs = performance.now() - writtenAt;
-	return { ok: true, status: 201, replayed: false, body: response, alarms, timings: { contextMs, judgeMs, lockMs, spcMs, writeMs, commitMs } };
+	return { ok: true, status: 201, replayed: false, body: response, alarms, timings: { contextMs, judgeMs, lockMs, spcMs, writeMs, commitMs, violations } };
 }
 
 /** The yield event of a batch from the figures its write statement returned. */

@@ -43,7 +43,8 @@ export const POST: RequestHandler = async ({ request, locals, url }) => {
 		const t = outcome.timings;
 		headers['server-timing'] = Object.entries({ context: t.contextMs, judge: t.judgeMs, lock: t.lockMs, spc: t.spcMs, write: t.writeMs, commit: t.commitMs })
 			.map(([name, ms]) => `${name};dur=${ms.toFixed(2)}`)
-			.join(', ');
+			.join(', ')
+			.concat(`, alarms;desc="${t.violations}"`);
 	}
 	return json(outcome.body, { status: outcome.status, headers });
 };
