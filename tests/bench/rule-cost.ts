@@ -61,8 +61,15 @@ function unit(lot: string) {
 	serial++;
 	// A process in control: independent normal scatter of 0.3 %, no drift. The rules still fire
 	// now and then (each rule's false-alarm rate), and those posts open or extend alarms.
+	// Each point also has its own 0.1 % reading noise: with a pure scale factor the ratio C1/C25
+	// would not vary at all, its chart would freeze limits of zero width, and every float
+	// rounding would break a rule.
 	const k = 1 + 0.003 * gauss(rand);
-	return { serial: `${lot}-${serial}`, testedAt: new Date().toISOString(), points: BIASES.map((v) => ({ biasV: v, resonanceHz: resonance(partF(v, k)) })) };
+	return {
+		serial: `${lot}-${serial}`,
+		testedAt: new Date().toISOString(),
+		points: BIASES.map((v) => ({ biasV: v, resonanceHz: resonance(partF(v, k) * (1 + 0.001 * gauss(rand))) }))
+	};
 }
 
 async function post(token: string, lot: string) {

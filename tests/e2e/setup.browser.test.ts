@@ -50,6 +50,12 @@ async function shot(page: Page, name: string, top = true) {
 /** The plan version the product's page shows as in force. */
 const versionShown = (page: Page) => page.locator('[data-testid=plan-version]').textContent();
 
+async function planSpcByApi(code: string): Promise<{ rules?: string[] } | undefined> {
+	const res = await fetch(`${baseUrl()}/api/v1/products`, { headers: { cookie: await cookie('engineer') } });
+	const body = (await res.json()) as { products: { code: string; plan: { plan: { spc?: { rules?: string[] } } } }[] };
+	return body.products.find((x) => x.code === code)?.plan.plan.spc;
+}
+
 async function planVersionByApi(code: string): Promise<number> {
 	const res = await fetch(`${baseUrl()}/api/v1/products`, { headers: { cookie: await cookie('engineer') } });
 	const body = (await res.json()) as { products: { code: string; plan: { version: number } }[] };
@@ -130,6 +136,11 @@ describe('products and spec plans in Chromium', () => {
 		expect(await change.textContent()).toContain('25 – 29 pF');
 		expect(await change.textContent()).toContain('25 – 29.5 pF');
 		expect(await page.locator('[data-version="2"]').textContent()).toContain('customer review');
+		// The rule boxes show the defaults, and saving kept them as no choice (rules on by default).
+		expect(await page.isChecked('#rule-WE1')).toBe(true);
+		expect(await page.isChecked('#rule-WE4')).toBe(true);
+		expect(await page.isChecked('#rule-N3')).toBe(false);
+		expect((await planSpcByApi(CODE))?.rules).toBeUndefined();
 		await page.click('button:has-text("Save as new version")');
 		await expect.poll(() => page.locator('[role=status]').first().textContent()).toContain('Nothing changed');
 		expect(await planVersionByApi(CODE)).toBe(2);

@@ -36,7 +36,16 @@ export function planLines(plan: SpecPlan): PlanLine[] {
 		const b = plan.bins?.[c];
 		if (b !== undefined) lines.push({ field: `Bin for ${BIN_LABELS[c].toLowerCase()}`, value: String(b) });
 	}
-	if (plan.spc?.baselineParts !== undefined) lines.push({ field: 'SPC baseline', value: `${plan.spc.baselineParts} parts` });
+	const spc = plan.spc;
+	if (spc?.baselineParts !== undefined) lines.push({ field: 'SPC baseline', value: `${spc.baselineParts} parts` });
+	if (spc?.referenceBaselineParts !== undefined) lines.push({ field: 'Reference baseline', value: `${spc.referenceBaselineParts} parts` });
+	if (spc?.subgroupSize !== undefined) lines.push({ field: 'X̄ subgroup', value: `${spc.subgroupSize} parts` });
+	if (spc?.pChartParts !== undefined) lines.push({ field: 'Yield chart per', value: `${spc.pChartParts} parts` });
+	if (spc?.ewmaLambda !== undefined) lines.push({ field: 'EWMA λ', value: num(spc.ewmaLambda) });
+	if (spc?.ewmaLimitWidthSigma !== undefined) lines.push({ field: 'EWMA L', value: `${num(spc.ewmaLimitWidthSigma)} σ` });
+	if (spc?.cusumReferenceK !== undefined) lines.push({ field: 'CUSUM k', value: `${num(spc.cusumReferenceK)} σ` });
+	if (spc?.cusumDecisionH !== undefined) lines.push({ field: 'CUSUM h', value: `${num(spc.cusumDecisionH)} σ` });
+	if (spc?.rules !== undefined) lines.push({ field: 'Control rules', value: spc.rules.length ? spc.rules.join(', ') : 'none' });
 	return lines;
 }
 
