@@ -10,7 +10,7 @@ import { gauss, prng } from '../support/prng';
 
 const base = process.env.BENCH_URL ?? '';
 if (!base) throw new Error('BENCH_URL is not set: run npm run bench');
-const POSTS = Number(process.env.BENCH_RULE_POSTS ?? 400);
+const POSTS = Number(process.env.BENCH_RULE_POSTS ?? 300);
 const FILL = Number(process.env.BENCH_RULE_FILL ?? 1_000_000);
 // Points added to each chart: far past any rule window (15 points), so the history is long.
 const CHART_FILL = Number(process.env.BENCH_RULE_CHART_FILL ?? 100_000);
@@ -46,8 +46,8 @@ async function setup() {
 	const st = await call('/api/v1/stations', { name: `R-${tag}`, fixture: FIXTURE }, { cookie });
 	const token = ((await st.json()) as { token: string }).token;
 	await call('/api/v1/calibrations', { references: [10, 47, 100, 220].map((c) => ({ capacitanceF: c * pF, resonanceHz: resonance(c * pF) })) }, { authorization: `Bearer ${token}` });
-	const lots: Record<'all' | 'none', string> = { all: `LT-RA-${tag}`, none: `LT-RN-${tag}` };
-	for (const [which, rules] of [['all', ALL_RULES], ['none', []]] as const) {
+	const lots: Record<'all' | 'defaults' | 'none', string> = { all: `LT-RA-${tag}`, defaults: `LT-RD-${tag}`, none: `LT-RN-${tag}` };
+	for (const [which, rules] of [['all', ALL_RULES], ['defaults', ['WE1', 'WE4']], ['none', []]] as const) {
 		const code = `RULE-${which}-${tag}`;
 		await call('/api/v1/products', { code, name: `Rule cost (${which})`, plan: plan([...rules]) }, { cookie });
 		await call('/api/v1/lots', { number: lots[which], productCode: code, quantity: 10_000_000 }, { cookie });
@@ -126,27 +126,36 @@ const { token, lots } = await setup();
 // Past the 30-part baselines, so every chart is active and every rule is stepping.
 for (let i = 0; i < 40; i++) {
 	await post(token, lots.all);
+	await post(token, lots.defaults);
 	await post(token, lots.none);
 }
-const seconds = await fill([lots.all, lots.none]);
-const all: { ms: number; spcMs: number }[] = [];
-const none: { ms: number; spcMs: number }[] = [];
-for (let i = 0; i < 20; i++) await post(token, i % 2 ? lots.all : lots.none); // warm after the fill
+const seconds = await fill([lots.all, lots.defaults, lots.none]);
+type Answer = { ms: number; spcMs: number; alarmed: boolean };
+const all: Answer[] = [];
+const defaults: Answer[] = [];
+const none: Answer[] = [];
+for (let i = 0; i < 20; i++) await post(token, [lots.all, lots.defaults, lots.none][i % 3] ?? lots.none); // warm after the fill
 for (let i = 0; i < POSTS; i++) {
-	// Alternating, so machine noise falls on both alike.
+	// In turn, so machine noise falls on all three alike.
 	all.push(await post(token, lots.all));
+	defaults.push(await post(token, lots.defaults));
 	none.push(await post(token, lots.none));
 }
 const med = (xs: { ms: number }[]) => pct(xs.map((x) => x.ms), 50);
 const added = med(all) - med(none);
 const quiet = all.filter((x) => !x.alarmed);
 const addedQuiet = med(quiet) - med(none);
+const addedDefaults = med(defaults) - med(none);
+const quietDefaults = defaults.filter((x) => !x.alarmed);
+const addedQuietDefaults = med(quietDefaults) - med(none);
 console.log(`${FILL.toLocaleString('en-US')} more parts stored and ${CHART_FILL.toLocaleString('en-US')} more points on each chart (filled in SQL in ${seconds.toFixed(0)} s), then ${POSTS} single 8-point posts to each product, alternating; 9 charts per product.`);
 console.log('');
 console.log('| product | bin answer p50 | p95 | rule stepping in the server (Server-Timing spc) p50 |');
 console.log('| --- | --- | --- | --- |');
 console.log(`| every rule on (15) | ${ms(med(all))} | ${ms(pct(all.map((x) => x.ms), 95))} | ${ms(pct(all.map((x) => x.spcMs), 50))} |`);
+console.log(`| the default rules (WE1, WE4) | ${ms(med(defaults))} | ${ms(pct(defaults.map((x) => x.ms), 95))} | ${ms(pct(defaults.map((x) => x.spcMs), 50))} |`);
 console.log(`| no rule | ${ms(med(none))} | ${ms(pct(none.map((x) => x.ms), 95))} | ${ms(pct(none.map((x) => x.spcMs), 50))} |`);
 console.log('');
 console.log(`Rule evaluation adds **${ms(added)}** to the median post (target < 2 ms: ${added < 2 ? 'met' : `missed by ${ms(added - 2)}`}).`);
+console.log(`The default rules add **${ms(addedDefaults)}** (${defaults.length - quietDefaults.length} of ${defaults.length} posts raised an alarm; over the others ${ms(addedQuietDefaults)}).`);
 console.log(`${all.length - quiet.length} of ${all.length} posts with every rule on broke a rule and opened or extended an alarm (a statement each, plus the alarm's events); over the other ${quiet.length} posts the rules add ${ms(addedQuiet)} to the median.`);

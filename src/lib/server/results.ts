@@ -95,6 +95,39 @@ async function ingestContext(stationId: number, key: string, lotNumber: string):
 	return row;
 }
 
+/** A judged part as a `units` row, in the shape the ingest's INSERT reads (jsonb_to_recordset). */
+export function unitRow(
+	at: { lotId: number | undefined; stationId: number; planVersionId: number; calibrationId: number; kind: string },
+	unit: ResultsBodyInput['units'][number],
+	evaluated: { bin: number; pass: boolean; capacitanceF: (number | null)[]; q: (number | null)[] | null; fit: UnitAnswer['fit'] },
+	failures: UnitAnswer['failures']
+): Record<string, unknown> {
+	return {
+		lot_id: at.lotId,
+		station_id: at.stationId,
+		plan_version_id: at.planVersionId,
+		calibration_id: at.calibrationId,
+		serial: unit.serial,
+		kind: at.kind,
+		tested_at: unit.testedAt,
+		temperature_c: unit.temperatureC ?? null,
+		leakage_a: unit.leakageA ?? null,
+		bin: evaluated.bin,
+		pass: evaluated.pass,
+		bias_v: unit.points.map((p) => p.biasV),
+		resonance_hz: unit.points.map((p) => p.resonanceHz),
+		bandwidth_hz: unit.points.some((p) => p.bandwidthHz !== undefined) ? unit.points.map((p) => p.bandwidthHz ?? null) : null,
+		capacitance_f: evaluated.capacitanceF,
+		q: evaluated.q,
+		cj0_f: evaluated.fit?.cj0F ?? null,
+		vj_v: evaluated.fit?.vjV ?? null,
+		m: evaluated.fit?.m ?? null,
+		cp_f: evaluated.fit?.cpF ?? null,
+		fit_rms_pct: evaluated.fit?.rmsPct ?? null,
+		failures
+	};
+}
+
 class KeyTaken extends Error {}
 class LotClosed extends Error {}
 
@@ -163,30 +196,7 @@ export async function ingestResults(
 		const failures = answerFailures(evaluated.failures);
 		answers.push({ serial: unit.serial, bin: evaluated.bin, pass: evaluated.pass, capacitanceF: evaluated.capacitanceF, q: evaluated.q, fit: evaluated.fit, failures });
 		charted.push({ kind: unit.kind, lotId: lot.id, testedAt: unit.testedAt, biasV: unit.points.map((p) => p.biasV), capacitanceF: evaluated.capacitanceF, plan: version.plan });
-		records.push({
-			lot_id: lot.id,
-			station_id: station.id,
-			plan_version_id: version.id,
-			calibration_id: calibration.id,
-			serial: unit.serial,
-			kind: unit.kind,
-			tested_at: unit.testedAt,
-			temperature_c: unit.temperatureC ?? null,
-			leakage_a: unit.leakageA ?? null,
-			bin: evaluated.bin,
-			pass: evaluated.pass,
-			bias_v: unit.points.map((p) => p.biasV),
-			resonance_hz: unit.points.map((p) => p.resonanceHz),
-			bandwidth_hz: unit.points.some((p) => p.bandwidthHz !== undefined) ? unit.points.map((p) => p.bandwidthHz ?? null) : null,
-			capacitance_f: evaluated.capacitanceF,
-			q: evaluated.q,
-			cj0_f: evaluated.fit?.cj0F ?? null,
-			vj_v: evaluated.fit?.vjV ?? null,
-			m: evaluated.fit?.m ?? null,
-			cp_f: evaluated.fit?.cpF ?? null,
-			fit_rms_pct: evaluated.fit?.rmsPct ?? null,
-			failures
-		});
+		records.push(unitRow({ lotId: lot.id, stationId: station.id, planVersionId: version.id, calibrationId: calibration.id, kind: unit.kind }, unit, evaluated, failures));
 	});
 	if (errors.length) return { ok: false, status: 400, kind: 'invalid-units', detail: 'Some units cannot be judged', errors };
 

@@ -13,7 +13,7 @@ import type { StationPrincipal } from './auth';
 import { calibrationInForceAt } from './calibrations';
 import { db } from './db';
 import { getProduct, getProductByCode } from './products';
-import type { IngestOutcome, UnitAnswer } from './results';
+import { unitRow, type IngestOutcome, type UnitAnswer } from './results';
 import { getStation } from './stations';
 import {
 	analyseCharacteristic,
@@ -378,30 +378,7 @@ export async function ingestStudyBatch(principal: StationPrincipal, key: string,
 		}
 		const failures = evaluated.failures.map(({ test, value, low, high }) => ({ test, value, low, high }));
 		answers.push({ serial: unit.serial, bin: evaluated.bin, pass: evaluated.pass, capacitanceF: evaluated.capacitanceF, q: evaluated.q, fit: evaluated.fit, failures });
-		records.push({
-			lot_id: partBySerial.get(unit.serial)?.lotId,
-			station_id: station.id,
-			plan_version_id: Number(version.id),
-			calibration_id: calibration.id,
-			serial: unit.serial,
-			kind: 'study',
-			tested_at: unit.testedAt,
-			temperature_c: unit.temperatureC ?? null,
-			leakage_a: unit.leakageA ?? null,
-			bin: evaluated.bin,
-			pass: evaluated.pass,
-			bias_v: unit.points.map((p) => p.biasV),
-			resonance_hz: unit.points.map((p) => p.resonanceHz),
-			bandwidth_hz: unit.points.some((p) => p.bandwidthHz !== undefined) ? unit.points.map((p) => p.bandwidthHz ?? null) : null,
-			capacitance_f: evaluated.capacitanceF,
-			q: evaluated.q,
-			cj0_f: evaluated.fit?.cj0F ?? null,
-			vj_v: evaluated.fit?.vjV ?? null,
-			m: evaluated.fit?.m ?? null,
-			cp_f: evaluated.fit?.cpF ?? null,
-			fit_rms_pct: evaluated.fit?.rmsPct ?? null,
-			failures
-		});
+		records.push(unitRow({ lotId: partBySerial.get(unit.serial)?.lotId, stationId: station.id, planVersionId: Number(version.id), calibrationId: calibration.id, kind: 'study' }, unit, evaluated, failures));
 	});
 	if (errors.length) return { ok: false, status: 400, kind: 'invalid-units', detail: 'Some units cannot be judged; nothing was stored', errors };
 
