@@ -6,19 +6,8 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import { evaluateUnit } from '$lib/measure';
 import type { SpecPlan } from '$lib/measure/types';
+import { gauss as normal, prng } from '$lib/prng';
 import { db } from './db';
-
-/** mulberry32, a small public-domain PRNG: the demo's readings are the same on every seed. */
-function uniform(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
 
 const pF = 1e-12;
 const junctionF = (v: number) => (40.0 * pF) / Math.sqrt(1 + v / 0.75) + 0.3 * pF;
@@ -43,8 +32,8 @@ export async function seedDemoStudy(t: Transaction): Promise<void> {
 	);
 	const studyId = Number(study?.id);
 	const serials = Array.from({ length: 10 }, (_, i) => `LT-26-1179-${String(40 + i * 37).padStart(6, '0')}`);
-	const rand = uniform(1179);
-	const gauss = () => Math.sqrt(-2 * Math.log(1 - rand())) * Math.cos(2 * Math.PI * rand());
+	const rand = prng(1179);
+	const gauss = () => normal(rand);
 	const partScale = serials.map((_, i) => 1 + (-0.03 + (0.06 * i) / 9) + 0.004 * gauss());
 	for (const [i, serial] of serials.entries()) {
 		await db().query('INSERT INTO study_parts (study_id, position, serial, lot_id) VALUES (:studyId, :i, :serial, :lot)', { replacements: { studyId, i, serial, lot: lot.id }, transaction: t });
