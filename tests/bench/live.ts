@@ -3,7 +3,7 @@
 // starts it on a throwaway database). Prints markdown.
 import { randomUUID } from 'node:crypto';
 import pg from 'pg';
-import { agent, request } from './line';
+import { agent, request, subscribe } from './line';
 
 const base = process.env.BENCH_URL ?? '';
 if (!base) throw new Error('BENCH_URL is not set: run npm run bench');
@@ -118,42 +118,10 @@ async function fillMillion(lot: string) {
 	}
 }
 
-/** Opens a stream and records when each unit event arrives (by serial). */
-function subscribe(cookie: string, lot: string, seen: Map<string, number[]>, ready: () => void) {
-	const controller = new AbortController();
-	void (async () => {
-		const res = await fetch(`${base}/api/v1/stream?lot=${lot}`, { headers: { cookie }, signal: controller.signal });
-		const reader = res.body?.getReader();
-		if (!reader) return;
-		const decoder = new TextDecoder();
-		let text = '';
-		ready();
-		try {
-			for (;;) {
-				const { value, done } = await reader.read();
-				if (done) break;
-				text += decoder.decode(value, { stream: true });
-				let end;
-				while ((end = text.indexOf('\n\n')) >= 0) {
-					const block = text.slice(0, end);
-					text = text.slice(end + 2);
-					if (!block.includes('event: unit')) continue;
-					const data = block.split('\n').find((l) => l.startsWith('data: '));
-					const s = data ? (JSON.parse(data.slice(6)) as { serial: string }).serial : null;
-					if (s) seen.set(s, [...(seen.get(s) ?? []), performance.now()]);
-				}
-			}
-		} catch {
-			// aborted at the end of the run
-		}
-	})();
-	return () => controller.abort();
-}
-
 async function streamRun(cookie: string, token: string, lot: string, subscribers: number, posts: number) {
 	const seen = new Map<string, number[]>();
 	let readyCount = 0;
-	const stops = Array.from({ length: subscribers }, () => subscribe(cookie, lot, seen, () => readyCount++));
+	const stops = Array.from({ length: subscribers }, () => subscribe(base, cookie, `lot=${encodeURIComponent(lot)}`, seen, () => readyCount++));
 	while (readyCount < subscribers) await new Promise((r) => setTimeout(r, 20));
 	await new Promise((r) => setTimeout(r, 300));
 	const sent: { serial: string; t0: number }[] = [];
@@ -163,7 +131,7 @@ async function streamRun(cookie: string, token: string, lot: string, subscribers
 		await new Promise((res) => setTimeout(res, 25));
 	}
 	await new Promise((r) => setTimeout(r, 1500));
-	stops.forEach((s) => s());
+	stops.forEach((s) => s.stop());
 	const lat: number[] = [];
 	let missing = 0;
 	for (const s of sent) {
