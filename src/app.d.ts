@@ -14,6 +14,8 @@ declare global {
 			station: StationPrincipal | null;
 			/** Set by handleError when the request failed because the database was away. */
 			databaseUnavailable?: boolean;
+			/** ms spent finding the signed-in person or the station (Server-Timing on station posts). */
+			authMs?: number;
 		}
 		// interface PageData {}
 		// interface PageState {}

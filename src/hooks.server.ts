@@ -21,14 +21,18 @@ const unavailableProblem = () =>
 
 const authenticate: Handle = async ({ event, resolve }) => {
 	event.locals.station = null;
+	const started = performance.now();
 	try {
 		event.locals.user = await userFromToken(event.cookies.get(SESSION_COOKIE));
 		// Stations authenticate with a bearer token on the API only; a browser never sends one.
 		const auth = event.request.headers.get('authorization');
 		if (auth && event.url.pathname.startsWith('/api/')) {
 			const m = /^Bearer\s+(\S+)$/i.exec(auth);
-			event.locals.station = m?.[1] ? await stationFromToken(m[1]) : null;
+			// A station's writes count against its rate limit in the same lookup.
+			const counted = event.request.method !== 'GET' && event.request.method !== 'HEAD';
+			event.locals.station = m?.[1] ? await stationFromToken(m[1], counted) : null;
 		}
+		event.locals.authMs = performance.now() - started;
 	} catch (e) {
 		if (!isDatabaseUnavailable(e)) throw e;
 		if (event.url.pathname.startsWith('/api/')) return unavailableProblem();

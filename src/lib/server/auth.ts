@@ -12,7 +12,8 @@ import { peekLimit, recordHit, resetLimit, SIGN_IN_LIMITS } from './ratelimit';
 export const SESSION_COOKIE = 'biasline_session';
 
 export type SessionUser = { id: number; email: string; name: string; role: Role };
-export type StationPrincipal = { id: number; name: string };
+/** A station behind a bearer token; `hit`: its request as counted against the rate limit, when counted at lookup. */
+export type StationPrincipal = { id: number; name: string; hit?: { count: number; remainingS: number } };
 
 function keyBytes(key: string): Uint8Array {
 	return new TextEncoder().encode(key);

@@ -7,6 +7,7 @@ import type { SpecPlan } from '$lib/measure/types';
 import { computeBaseline, initialRuleState, step, type ChartRuleLimits, type RuleId, type RuleState, type Violation } from '$lib/spc';
 import { ALL_RULE_IDS, DEFAULT_RULE_IDS } from '$lib/spc/types';
 import { db } from './db';
+import { run, statement } from './db/prepared';
 
 /** Rules on when a plan names none (see DEFAULT_RULE_IDS); a plan can name others in `spc.rules`. */
 export const DEFAULT_RULES: readonly RuleId[] = DEFAULT_RULE_IDS;
@@ -85,6 +86,9 @@ export type ChartRow = {
 	limits: ChartRuleLimits | null;
 	limits_version: number;
 	rule_state: RuleState | null;
+	/** Set when the chart is written: the point count and limits version it was read with. */
+	was_count?: number;
+	was_version?: number;
 };
 
 export type OpenedAlarm = {
@@ -139,34 +143,44 @@ export function chartWork(units: SpcUnit[]): ChartWork {
 }
 
 /**
- * The statement that locks a batch's chart rows, in id order so two posts touching the same
- * charts cannot deadlock. Parameters: $1 station id, $2 product id, $3 the specs as JSON.
+ * The select of a station's charts of a product (both kinds), for the post's context read:
+ * parameters given as SQL expressions. No lock: the write statement checks each chart still
+ * holds what was read (see chartWriteCtes).
  */
-export const LOCK_CHARTS_SQL = `SELECT c.id, c.kind, c.characteristic, c.status, c.point_count, c.limits, c.limits_version, c.rule_state
-	 FROM charts c JOIN jsonb_to_recordset(CAST($3 AS jsonb)) AS x(kind text, characteristic text) ON x.kind = c.kind AND x.characteristic = c.characteristic
-	 WHERE c.station_id = $1 AND c.product_id = $2 ORDER BY c.id FOR UPDATE OF c`;
+export function chartsOfSql(station: string, product: string): string {
+	return `SELECT c.id, c.kind, c.characteristic, c.status, c.point_count, c.limits, c.limits_version, c.rule_state
+	 FROM charts c WHERE c.station_id = ${station} AND c.product_id = ${product} ORDER BY c.id`;
+}
 
-/** Creates the charts a batch needs that do not exist yet, and locks them all (a chart's first parts only). */
-export async function createAndLockCharts(t: Transaction, stationId: number, productId: number, work: ChartWork): Promise<ChartRow[]> {
-	const specs = JSON.stringify(work.specs);
+const CHARTS_OF = statement('charts-of', chartsOfSql('$1', '$2'));
+
+/** Creates the charts a batch needs that do not exist yet (a chart's first parts only); returns all of the station's charts of the product. */
+export async function createCharts(stationId: number, productId: number, work: ChartWork): Promise<ChartRow[]> {
 	await db().query(
 		`INSERT INTO charts (station_id, product_id, kind, characteristic, unit)
 		 SELECT $1, $2, kind, characteristic, unit FROM jsonb_to_recordset(CAST($3 AS jsonb)) AS x(kind text, characteristic text, unit text)
 		 ON CONFLICT DO NOTHING`,
-		{ bind: [stationId, productId, specs], transaction: t }
+		{ bind: [stationId, productId, JSON.stringify(work.specs)] }
 	);
-	return db().query<ChartRow>(LOCK_CHARTS_SQL, { bind: [stationId, productId, specs], type: QueryTypes.SELECT, transaction: t });
+	return run<ChartRow>(CHARTS_OF, [stationId, productId]);
+}
+
+/** True when every chart the batch needs is among `rows`. */
+export function hasCharts(rows: ChartRow[], work: ChartWork): boolean {
+	return work.specs.every((s) => rows.some((r) => r.kind === s.kind && r.characteristic === s.characteristic));
 }
 
 /**
  * Steps every locked chart's rules over the batch's values (the rule engine's bounded state, so
  * the work is set by the rule windows, not the history) and freezes baselines that fill up.
  */
-export async function stepCharts(t: Transaction, rows: ChartRow[], work: ChartWork): Promise<ChartWrites> {
-	const out: ChartWrites = { points: [], charts: rows, limits: [], pending: [] };
+export async function stepCharts(rows: ChartRow[], work: ChartWork): Promise<ChartWrites> {
+	const out: ChartWrites = { points: [], charts: [], limits: [], pending: [] };
 	for (const chart of rows) {
 		const list = work.items.get(`${chart.kind}|${chart.characteristic}`);
 		if (!list) continue;
+		// What the write checks the chart still holds (see chartWriteCtes).
+		out.charts.push(Object.assign(chart, { was_count: chart.point_count, was_version: chart.limits_version }));
 		for (const { unit, value } of list) {
 			const seq = chart.point_count;
 			let fired: Violation[] = [];
@@ -181,7 +195,7 @@ export async function stepCharts(t: Transaction, rows: ChartRow[], work: ChartWo
 			for (const violation of fired) out.pending.push({ violation, chart, unit, seq });
 			chart.point_count++;
 			if (chart.status === 'baseline' && chart.point_count >= baselineOf(unit.plan, chart.kind)) {
-				await freezeBaseline(t, chart, unit.plan, baselineOf(unit.plan, chart.kind), out.points, out.limits);
+				await freezeBaseline(chart, unit.plan, baselineOf(unit.plan, chart.kind), out.points, out.limits);
 			}
 		}
 	}
@@ -191,6 +205,9 @@ export async function stepCharts(t: Transaction, rows: ChartRow[], work: ChartWo
 /**
  * The parts of the batch's one write statement that store chart points, limits and the charts'
  * new state (CTEs named pts, lim, chs). Parameters: $P points, $C charts, $L limits as JSON.
+ * A chart is written only where it still has the point count and limits version it had when
+ * read (was_count, was_version); chs returns the charts written, and the statement's guard
+ * undoes everything when one is missing (another post, or new limits, came in between).
  */
 export function chartWriteCtes(p: { points: string; charts: string; limits: string }): string[] {
 	return [
@@ -201,8 +218,11 @@ export function chartWriteCtes(p: { points: string; charts: string; limits: stri
 		   SELECT chart_id, version, limits, from_seq, to_seq, reason FROM jsonb_to_recordset(CAST(${p.limits} AS jsonb))
 		     AS x(chart_id bigint, version integer, limits jsonb, from_seq integer, to_seq integer, reason text))`,
 		`chs AS (UPDATE charts c SET status = x.status, point_count = x.point_count, limits = x.limits, limits_version = x.limits_version, rule_state = x.rule_state
-		   FROM jsonb_to_recordset(CAST(${p.charts} AS jsonb)) AS x(id bigint, status text, point_count integer, limits jsonb, limits_version integer, rule_state jsonb)
-		   WHERE c.id = x.id)`
+		   FROM jsonb_to_recordset(CAST(${p.charts} AS jsonb))
+		     AS x(id bigint, status text, point_count integer, limits jsonb, limits_version integer, rule_state jsonb, was_count integer, was_version integer)
+		   WHERE c.id = x.id AND c.id = ANY (ARRAY(SELECT CAST(e->>'id' AS bigint) FROM jsonb_array_elements(CAST(${p.charts} AS jsonb)) e))
+		     AND c.point_count = x.was_count AND c.limits_version = x.was_version
+		   RETURNING c.id)`
 	];
 }
 
@@ -212,11 +232,11 @@ export function openBatchAlarms(t: Transaction, stationId: number, writes: Chart
 }
 
 /** Freezes a chart's limits from its first `n` points (stored ones plus this batch's). */
-async function freezeBaseline(t: Transaction, chart: ChartRow, plan: SpecPlan, n: number, batchPoints: Record<string, unknown>[], limitRows: Record<string, unknown>[]) {
+async function freezeBaseline(chart: ChartRow, plan: SpecPlan, n: number, batchPoints: Record<string, unknown>[], limitRows: Record<string, unknown>[]) {
+	// A chart's first points never change once stored, so they are read outside the post's write.
 	const stored = await db().query<{ value: number }>('SELECT value FROM chart_points WHERE chart_id = :id ORDER BY seq LIMIT :n', {
 		replacements: { id: chart.id, n },
-		type: QueryTypes.SELECT,
-		transaction: t
+		type: QueryTypes.SELECT
 	});
 	const fresh = batchPoints.filter((p) => p.chart_id === chart.id).map((p) => Number(p.value));
 	const values = [...stored.map((s) => s.value), ...fresh].slice(0, n);

@@ -6,6 +6,8 @@ import type { Arrangement } from '$lib/measure/types';
 import { audit, type Actor } from './audit';
 import { sha256, type StationPrincipal } from './auth';
 import { db } from './db';
+import { run, statement } from './db/prepared';
+import { hitUpsert, STATION_LIMITS } from './ratelimit';
 
 export type Fixture = { inductanceH: number; strayF: number; blockingF: number | null; arrangement: Arrangement };
 export type CalibrationPolicy = {
@@ -87,14 +89,27 @@ export async function getStationByName(name: string): Promise<StationRecord | nu
 	return rows[0] ? plain(rows[0]) : null;
 }
 
-/** The active station a bearer token belongs to, or null. */
-export async function stationFromToken(token: string): Promise<StationPrincipal | null> {
+/**
+ * The active station a bearer token belongs to, and, when `$2` is true, its request counted
+ * against the station rate limit in the same statement (so a station post costs one round trip
+ * for both). Like recordHit, the statement commits without waiting for the disk.
+ */
+const STATION_BY_TOKEN = statement(
+	'station-by-token',
+	`WITH quick AS (SELECT set_config('synchronous_commit', 'off', true) AS v),
+	 st AS (SELECT id, name FROM stations WHERE token_hash = $1 AND active),
+	 hit AS (${hitUpsert({ key: "'station:' || id", from: 'FROM st WHERE CAST($2 AS boolean)', windowParam: '$3' })})
+	 SELECT st.id, st.name, h.count, h.remaining, (SELECT v FROM quick) AS quick FROM st LEFT JOIN hit h ON true`
+);
+
+/** The active station a bearer token belongs to, or null; `countHit`: count the request against the rate limit too. */
+export async function stationFromToken(token: string, countHit = false): Promise<StationPrincipal | null> {
 	if (!token.startsWith('bst_') || token.length > 200) return null;
-	const rows = await db().query<{ id: string; name: string }>('SELECT id, name FROM stations WHERE token_hash = :h AND active', {
-		replacements: { h: sha256(token) },
-		type: QueryTypes.SELECT
-	});
-	return rows[0] ? { id: Number(rows[0].id), name: rows[0].name } : null;
+	const [row] = await run<{ id: string; name: string; count: number | null; remaining: number | null }>(STATION_BY_TOKEN, [sha256(token), countHit, STATION_LIMITS.windowS]);
+	if (!row) return null;
+	const principal: StationPrincipal = { id: Number(row.id), name: row.name };
+	if (row.count !== null) principal.hit = { count: row.count, remainingS: row.remaining ?? 0 };
+	return principal;
 }
 
 async function lineId(name: string | undefined, transaction: Transaction): Promise<number | null> {

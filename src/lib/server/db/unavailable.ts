@@ -27,6 +27,8 @@ export function isDatabaseUnavailable(error: unknown, depth = 0): boolean {
 	if (error instanceof ConnectionError) return true;
 	const code = field(error, 'code');
 	if (typeof code === 'string' && (SQLSTATES.has(code) || SOCKET_CODES.has(code))) return true;
+	// A Unix socket that is not there: the server is stopped (it removes its socket file).
+	if (code === 'ENOENT' && field(error, 'syscall') === 'connect') return true;
 	const message = field(error, 'message');
 	if (typeof message === 'string' && MESSAGES.test(message)) return true;
 	return ['original', 'parent', 'cause'].some((k) => {

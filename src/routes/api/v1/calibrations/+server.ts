@@ -9,7 +9,7 @@ import type { RequestHandler } from './$types';
 
 export const POST: RequestHandler = async ({ request, locals }) => {
 	const station = requireStation(locals);
-	const wait = await stationOverLimit(station.id);
+	const wait = await stationOverLimit(station);
 	if (wait !== null) return problem(429, 'Too many requests from this station', { headers: { 'retry-after': String(wait) } });
 	const body = await readJson(request);
 	if (!body.ok) return body.response;

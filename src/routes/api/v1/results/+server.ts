@@ -15,7 +15,9 @@ const tooLarge = () =>
 
 export const POST: RequestHandler = async ({ request, locals, url }) => {
 	const station = requireStation(locals);
-	const wait = await stationOverLimit(station.id);
+	const limitStart = performance.now();
+	const wait = await stationOverLimit(station);
+	const limitMs = performance.now() - limitStart;
 	if (wait !== null) return problem(429, 'Too many requests from this station', { headers: { 'retry-after': String(wait) } });
 	const key = IdempotencyKey.safeParse(request.headers.get('idempotency-key') ?? '');
 	if (!key.success) {
@@ -25,6 +27,7 @@ export const POST: RequestHandler = async ({ request, locals, url }) => {
 	}
 	if (!/^application\/([\w.+-]+\+)?json\b/i.test(request.headers.get('content-type') ?? '')) return problem(415, 'Send the body as application/json');
 	if (Number(request.headers.get('content-length') ?? 0) > MAX_BODY_BYTES) return tooLarge();
+	const parseStart = performance.now();
 	const raw = await request.text();
 	if (raw.length > MAX_BODY_BYTES) return tooLarge();
 	let value: unknown;
@@ -35,16 +38,17 @@ export const POST: RequestHandler = async ({ request, locals, url }) => {
 	}
 	const parsed = ResultsBody.safeParse(value);
 	if (!parsed.success) return problem(400, 'Check the fields listed in errors; nothing was stored', { errors: issueList(parsed.error) });
+	const parseMs = performance.now() - parseStart;
 	const outcome = await ingestResults(station, key.data, requestHash(raw), parsed.data, new Date(), url.origin);
 	if (!outcome.ok) return problem(outcome.status, outcome.detail, { kind: outcome.kind, errors: outcome.errors });
 	const headers: Record<string, string> = outcome.replayed ? { 'idempotent-replayed': 'true' } : {};
 	// Server-Timing (W3C): where the post's time went, for benchmarks and station logs.
 	if (outcome.timings) {
 		const t = outcome.timings;
-		headers['server-timing'] = Object.entries({ context: t.contextMs, judge: t.judgeMs, lock: t.lockMs, spc: t.spcMs, write: t.writeMs, commit: t.commitMs })
+		headers['server-timing'] = Object.entries({ auth: locals.authMs ?? 0, limit: limitMs, parse: parseMs, context: t.contextMs, judge: t.judgeMs, spc: t.spcMs, write: t.writeMs, commit: t.commitMs })
 			.map(([name, ms]) => `${name};dur=${ms.toFixed(2)}`)
 			.join(', ')
-			.concat(`, alarms;desc="${t.violations}"`);
+			.concat(`, alarms;desc="${t.violations}", tries;desc="${t.tries ?? 1}"`);
 	}
 	return json(outcome.body, { status: outcome.status, headers });
 };
