@@ -26,6 +26,27 @@ export function binNames(plan: SpecPlan): Map<number, string> {
 
 const sameBias = (a: number, b: number) => Math.abs(a - b) <= 1e-6;
 
+/**
+ * One lot's parts in id order through units_lot_idx (lot_id, id). The lot is written as a range
+ * (lot_id >= :lotId AND lot_id <= :lotId) and the order as (lot_id, id): with `lot_id = :lotId`
+ * the planner drops lot_id from the order and may walk the primary key instead, filtering on
+ * lot_id, which reads every part of the other lots stored before (or after) this one first
+ * (seconds with a million of them). Only units_lot_idx gives this order, so it is used.
+ */
+const LOT_RANGE = 'u.lot_id >= :lotId AND u.lot_id <= :lotId';
+
+/**
+ * A one-dimensional float8[] in PostgreSQL's text form ("{1,2.5,NULL,NaN}") as numbers; null for
+ * SQL NULL. Reading thousands of arrays this way is several times faster than the driver's
+ * general array parser, and gives the same doubles (float8 text is exact in PostgreSQL 12+).
+ */
+export function parseFloatArray(text: string | null): (number | null)[] | null {
+	if (text === null) return null;
+	const inner = text.trim().slice(1, -1);
+	if (!inner) return [];
+	return inner.split(',').map((t) => (t === 'NULL' ? null : Number(t)));
+}
+
 /** The capacitance (F) of a part at a bias, or null when not measured there. */
 function capacitanceAt(biasV: number[], capacitanceF: (number | null)[], at: number): number | null {
 	const i = biasV.findIndex((v) => sameBias(v, at));
@@ -202,14 +223,14 @@ export type CvSampleCurve = { id: string; unitId: number; biasV: number[]; capac
 export async function lotCvSample(lotId: number, n = 50): Promise<CvSampleCurve[]> {
 	const rows = await db().query<{ id: string; serial: string; pass: boolean; bias_v: number[]; capacitance_f: (number | null)[] | null }>(
 		`WITH r AS (
-		   SELECT (SELECT id FROM units WHERE lot_id = :lotId AND kind = 'production' ORDER BY id LIMIT 1) AS lo,
-		          (SELECT id FROM units WHERE lot_id = :lotId AND kind = 'production' ORDER BY id DESC LIMIT 1) AS hi)
+		   SELECT (SELECT u.id FROM units u WHERE ${LOT_RANGE} AND u.kind = 'production' ORDER BY u.lot_id, u.id LIMIT 1) AS lo,
+		          (SELECT u.id FROM units u WHERE ${LOT_RANGE} AND u.kind = 'production' ORDER BY u.lot_id DESC, u.id DESC LIMIT 1) AS hi)
 		 SELECT DISTINCT ON (s.id) s.id, s.serial, s.pass, s.bias_v, s.capacitance_f
 		 FROM r CROSS JOIN generate_series(0, :n - 1) AS g(i)
 		 CROSS JOIN LATERAL (
 		   SELECT u.id, u.serial, u.pass, u.bias_v, u.capacitance_f FROM units u
-		   WHERE u.lot_id = :lotId AND u.kind = 'production' AND u.id >= r.lo + ((r.hi - r.lo) * g.i) / greatest(:n - 1, 1)
-		   ORDER BY u.id LIMIT 1) s
+		   WHERE (u.lot_id, u.id) >= (:lotId, r.lo + ((r.hi - r.lo) * g.i) / greatest(:n - 1, 1)) AND u.lot_id <= :lotId AND u.kind = 'production'
+		   ORDER BY u.lot_id, u.id LIMIT 1) s
 		 WHERE r.lo IS NOT NULL
 		 ORDER BY s.id`,
 		{ replacements: { lotId, n }, type: QueryTypes.SELECT }
@@ -242,22 +263,67 @@ export type Characteristic = {
 /** Parts read for histograms and capability: the newest ones, the whole lot when smaller (our bound). */
 export const CHARACTERISTIC_PARTS = 10_000;
 
+export type LotCharacteristics = { characteristics: Characteristic[]; parts: number };
+
+/** Lots whose characteristics are kept (the most recently computed ones); our bound. */
+export const CHARACTERISTICS_CACHE_LOTS = 16;
+const characteristicsCache = new Map<number, { key: string; value: LotCharacteristics }>();
+
+/**
+ * The cached characteristics of a lot when `key` still describes it, else null. The key holds
+ * everything they depend on: the plan, the lot's production bin counts (every new part adds to
+ * them) and whether an alarm is open.
+ */
+function cachedCharacteristics(lotId: number, key: string): LotCharacteristics | null {
+	const hit = characteristicsCache.get(lotId);
+	if (!hit || hit.key !== key) return null;
+	characteristicsCache.delete(lotId);
+	characteristicsCache.set(lotId, hit);
+	return hit.value;
+}
+
+function keepCharacteristics(lotId: number, key: string, value: LotCharacteristics): void {
+	characteristicsCache.delete(lotId);
+	characteristicsCache.set(lotId, { key, value });
+	for (const old of characteristicsCache.keys()) {
+		if (characteristicsCache.size <= CHARACTERISTICS_CACHE_LOTS) break;
+		characteristicsCache.delete(old);
+	}
+}
+
 /**
  * Each charted characteristic of the lot's production parts (the capacitance at every plan point
  * in pF, and the ratio when the plan has one): histogram classes and capability against the
  * plan's limits, in test order. The process counts as in control when the lot has no open alarm.
+ *
+ * With `binCounts` (the lot's production bin counts, read before this call) the answer is kept
+ * and reused while the plan, the counts and the alarm state are unchanged: a repeat load of an
+ * unchanged lot skips reading its parts, and a new part (a new count) reads them again. The
+ * counts must be read first: parts stored after them only make the kept answer newer than its key.
  */
-export async function lotCharacteristics(lotId: number, plan: SpecPlan): Promise<{ characteristics: Characteristic[]; parts: number }> {
-	const [rows, alarms] = await Promise.all([
-		db().query<{ bias_v: number[]; capacitance_f: (number | null)[] | null }>(
-			`SELECT bias_v, capacitance_f FROM (
-			   SELECT id, bias_v, capacitance_f FROM units WHERE lot_id = :lotId AND kind = 'production' ORDER BY id DESC LIMIT :limit) x
-			 ORDER BY id`,
-			{ replacements: { lotId, limit: CHARACTERISTIC_PARTS }, type: QueryTypes.SELECT }
-		),
-		db().query<{ n: string }>("SELECT count(*) AS n FROM alarms WHERE lot_id = :lotId AND status <> 'closed'", { replacements: { lotId }, type: QueryTypes.SELECT })
-	]);
+export async function lotCharacteristics(lotId: number, plan: SpecPlan, binCounts?: Record<string, number>): Promise<LotCharacteristics> {
+	const alarms = await db().query<{ n: string }>("SELECT count(*) AS n FROM alarms WHERE lot_id = :lotId AND status <> 'closed'", {
+		replacements: { lotId },
+		type: QueryTypes.SELECT
+	});
 	const inControl = Number(alarms[0]?.n ?? 0) === 0;
+	const key = binCounts ? JSON.stringify({ plan, binCounts, inControl }) : null;
+	const cached = key === null ? null : cachedCharacteristics(lotId, key);
+	if (cached) return cached;
+	const value = await computeCharacteristics(lotId, plan, inControl);
+	if (key !== null) keepCharacteristics(lotId, key, value);
+	return value;
+}
+
+async function computeCharacteristics(lotId: number, plan: SpecPlan, inControl: boolean): Promise<LotCharacteristics> {
+	// The arrays as text, parsed by parseFloatArray (10 000 parts: ~100 ms less than the driver's parser).
+	const rows = await db().query<{ bias_v: string; capacitance_f: string | null }>(
+		`SELECT CAST(bias_v AS text) AS bias_v, CAST(capacitance_f AS text) AS capacitance_f FROM (
+		   SELECT u.id, u.bias_v, u.capacitance_f FROM units u WHERE ${LOT_RANGE} AND u.kind = 'production'
+		   ORDER BY u.lot_id DESC, u.id DESC LIMIT :limit) x
+		 ORDER BY id`,
+		{ replacements: { lotId, limit: CHARACTERISTIC_PARTS }, type: QueryTypes.SELECT }
+	);
 	const series: { key: string; label: string; unit: string; lsl: number | null; usl: number | null; values: number[] }[] = plan.points.map((p) => ({
 		key: `C@${p.biasV}V`,
 		label: `C at ${p.biasV} V`,
@@ -270,7 +336,8 @@ export async function lotCharacteristics(lotId: number, plan: SpecPlan): Promise
 	const ratioSeries = ratio
 		? { key: 'ratio', label: `Ratio C(${ratio.lowBiasV} V) / C(${ratio.highBiasV} V)`, unit: '', lsl: ratio.min ?? null, usl: ratio.max ?? null, values: [] as number[] }
 		: null;
-	for (const r of rows) {
+	for (const row of rows) {
+		const r = { bias_v: (parseFloatArray(row.bias_v) ?? []) as number[], capacitance_f: parseFloatArray(row.capacitance_f) };
 		const caps = r.capacitance_f ?? [];
 		plan.points.forEach((p, i) => {
 			const c = capacitanceAt(r.bias_v, caps, p.biasV);
@@ -332,7 +399,7 @@ export async function lotPageView(number: string, q: PartsQueryValue) {
 	const [parts, sample, chars, sets, audit] = await Promise.all([
 		lotParts(summary.lot, planBiasV, q),
 		lotCvSample(summary.lot.id),
-		lotCharacteristics(summary.lot.id, plan),
+		lotCharacteristics(summary.lot.id, plan, summary.bins),
 		lotSets(summary.lot.id, { limit: 100, offset: 0 }),
 		auditEntries(['lot'], summary.lot.number, 20)
 	]);

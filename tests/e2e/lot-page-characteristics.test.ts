@@ -1,0 +1,79 @@
+// The lot page's characteristics (kept between loads of an unchanged lot): the Cpk of every
+// characteristic on the page equals the capability module's (tested against its references in
+// src/lib/spc) on the posted parts in test order, on a repeat load, and again after one more part
+// is posted through the other instance; the part count follows.
+import { beforeAll, describe, expect, test } from 'vitest';
+import { capability } from '$lib/spc/capability';
+import { baseUrl, baseUrlB, cookieOnce } from './helpers';
+import type { TestLine } from './line';
+import { LOT_PLAN, lotLine, postLotParts, type PostedPart } from './lots-support';
+
+let line: TestLine;
+let posted: PostedPart[] = [];
+
+beforeAll(async () => {
+	line = await lotLine('LOTC');
+	posted = await postLotParts(line, 60);
+});
+
+type PageFigures = { parts: number; cpk: Map<string, number | null> };
+
+async function pageFigures(base: string): Promise<PageFigures> {
+	const res = await fetch(`${base}/lots/${encodeURIComponent(line.lotNumber)}`, { headers: { cookie: await cookieOnce('engineer'), accept: 'text/html' } });
+	expect(res.status).toBe(200);
+	const html = await res.text();
+	const parts = /From ([\d,]+) production parts/.exec(html)?.[1];
+	expect(parts).toBeDefined();
+	const cpk = new Map<string, number | null>();
+	for (const m of html.matchAll(/data-characteristic="([^"]+)"[\s\S]*?data-cpk="([^"]*)"/g)) cpk.set(m[1] ?? '', m[2] ? Number(m[2]) : null);
+	return { parts: Number((parts ?? '').replaceAll(',', '')), cpk };
+}
+
+/** Cpk of C at 1 V, C at 4 V (pF) and their ratio over the parts, as the page defines them (production parts, test order). */
+function expectedCpk(parts: PostedPart[]): Map<string, number | null> {
+	const [p1, p4] = LOT_PLAN.points;
+	const c1 = parts.map((p) => (p.capacitanceF[0] ?? Number.NaN) * 1e12);
+	const c4 = parts.map((p) => (p.capacitanceF[1] ?? Number.NaN) * 1e12);
+	const ratio = parts.map((p) => (p.capacitanceF[0] ?? Number.NaN) / (p.capacitanceF[1] ?? Number.NaN));
+	const cpk = (values: number[], spec: { lowerSpecLimit?: number; upperSpecLimit?: number }) => {
+		const r = capability(values, spec, { processInControl: true });
+		return r.ok ? r.value.cpk.value : null;
+	};
+	return new Map([
+		['C@1V', cpk(c1, { lowerSpecLimit: (p1?.minF ?? 0) * 1e12, upperSpecLimit: (p1?.maxF ?? 0) * 1e12 })],
+		['C@4V', cpk(c4, { lowerSpecLimit: (p4?.minF ?? 0) * 1e12, upperSpecLimit: (p4?.maxF ?? 0) * 1e12 })],
+		['ratio', cpk(ratio, { lowerSpecLimit: LOT_PLAN.ratio.min })]
+	]);
+}
+
+function expectFigures(page: PageFigures, parts: PostedPart[]) {
+	expect(page.parts).toBe(parts.length);
+	const want = expectedCpk(parts);
+	expect([...page.cpk.keys()]).toEqual([...want.keys()]);
+	for (const [key, value] of want) {
+		expect(value).not.toBeNull();
+		expect(page.cpk.get(key), key).toBeCloseTo(value ?? Number.NaN, 9);
+	}
+}
+
+describe('lot page characteristics', () => {
+	test('equal the capability of the posted parts, on a first and a repeat load', async () => {
+		const first = await pageFigures(baseUrl());
+		expectFigures(first, posted);
+		const again = await pageFigures(baseUrl());
+		expect(again).toEqual(first);
+	});
+
+	test('a part posted through the other instance shows on the next load of both', async () => {
+		const before = await pageFigures(baseUrl());
+		await pageFigures(baseUrlB());
+		// One part 1.5 % high: still good, and it moves every mean and spread.
+		const answer = (await line.post([line.part(0.015)])) as unknown as { results: PostedPart[] };
+		const now = [...posted, ...answer.results];
+		for (const base of [baseUrl(), baseUrlB()]) {
+			const after = await pageFigures(base);
+			expectFigures(after, now);
+			expect(after.cpk.get('C@1V')).not.toBe(before.cpk.get('C@1V'));
+		}
+	});
+});
