@@ -38,7 +38,7 @@ export function tileState(idleS: number | null, calibrationDue: boolean): TileSt
 export async function floorView(): Promise<FloorView> {
 	const rows = await db().query<Row>(
 		`SELECT s.name, ln.name AS line, l.number AS lot, p.code, s.last_seen_at, cal.valid_until,
-		   (SELECT count(*) FROM units u WHERE u.station_id = s.id AND u.received_at > now() - interval '1 hour' AND u.kind = 'production') AS parts_hour,
+		   (SELECT coalesce(sum(m.production), 0) FROM station_minute_counts m WHERE m.station_id = s.id AND m.minute > now() - interval '1 hour') AS parts_hour,
 		   r.tested AS rolling_tested, r.passed AS rolling_passed,
 		   (SELECT count(*) FROM alarms a JOIN charts c ON c.id = a.chart_id WHERE c.station_id = s.id AND a.status <> 'closed') AS open_alarms,
 		   extract(epoch FROM now() - s.last_seen_at)::float8 AS idle_s,

@@ -58,7 +58,7 @@ export const TREND_POINTS = 200;
 /**
  * The station page's trends. Each query reads a bounded slice through an index, so the cost does
  * not grow with the parts stored: calibrations (station_id, at), chart_points (chart_id, seq), and
- * for throughput units_station_received_idx (station_id, received_at), aggregated in SQL.
+ * for throughput the station's minute counts (station_minute_counts, migration 0013), summed by hour.
  */
 export async function stationTrends(stationId: number, now: Date): Promise<StationTrends> {
 	const [cals, charts, hours] = await Promise.all([
@@ -72,8 +72,8 @@ export async function stationTrends(stationId: number, now: Date): Promise<Stati
 			{ replacements: { stationId }, type: QueryTypes.SELECT }
 		),
 		db().query<{ hour: Date; parts: string }>(
-			`SELECT date_trunc('hour', received_at, 'UTC') AS hour, count(*) AS parts FROM units
-			 WHERE station_id = :stationId AND received_at > :since GROUP BY 1 ORDER BY 1`,
+			`SELECT date_trunc('hour', minute, 'UTC') AS hour, sum(parts) AS parts FROM station_minute_counts
+			 WHERE station_id = :stationId AND minute > :since GROUP BY 1 ORDER BY 1`,
 			{ replacements: { stationId, since: new Date(now.getTime() - 24 * 3600e3) }, type: QueryTypes.SELECT }
 		)
 	]);
