@@ -184,6 +184,7 @@ const queries = [
 	{ what: 'floor, API', r: await timedGet('/api/v1/floor') },
 	{ what: 'floor page (HTML)', r: await timedGet('/floor') },
 	{ what: 'chart of 100 000 points, API (I-MR view)', r: await timedGet(`/api/v1/charts/${chartId}?limit=100000`) },
+	{ what: 'the same chart, columnar answer (I-MR view)', r: await timedGet(`/api/v1/charts/${chartId}?limit=100000&shape=columns`) },
 	{ what: 'lot page (HTML), lot of ~1 M parts', r: await timedGet(`/lots/${lot}`) },
 	{ what: 'lot units, API, first page', r: await timedGet(`/api/v1/lots/${lot}/units`) }
 ];

@@ -41,7 +41,19 @@ export const ChartQuery = z.object({
 	fromSeq: z.coerce.number().int().min(0).optional(),
 	/** Time range of the points (ISO 8601): from inclusive, to exclusive. */
 	from: z.iso.datetime({ offset: true }).optional(),
-	to: z.iso.datetime({ offset: true }).optional()
+	to: z.iso.datetime({ offset: true }).optional(),
+	/**
+	 * `rows` (default): a record per point. `columns`: the points as a record of lists (seq,
+	 * value, at in epoch ms, unitId, limitsVersion; rules only for the points that broke one, by
+	 * seq; no serials) and every list of records in the view data as a record of lists.
+	 */
+	shape: z
+		.enum(['rows', 'columns'])
+		.default('rows')
+		.meta({
+			description:
+				'rows (default): a record per point. columns: points as { seq, value, at (epoch ms), unitId, limitsVersion, rules (only the points that broke a rule, by seq) }, no serials; every list of records in data as a record of lists'
+		})
 });
 
 export const RecomputeLimitsBody = z

@@ -137,8 +137,9 @@ export type ChartDetail = {
  * scan of the station's parts (units_station_idx) reads them page by page, where a lookup per
  * point costs an index descent each (100 000 points: about 20 times the buffer reads). The scan
  * is bounded by a few times the points asked for; parts it does not reach are looked up by id.
+ * The scan comes back as one row of two JSON arrays (ids, serials), not a row per part.
  */
-async function serialsOf(stationId: string, unitIds: number[]): Promise<Map<number, string>> {
+async function serialsOf(stationId: string, unitIds: readonly number[]): Promise<Map<number, string>> {
 	const found = new Map<number, string>();
 	if (unitIds.length === 0) return found;
 	let lo = Infinity;
@@ -147,11 +148,14 @@ async function serialsOf(stationId: string, unitIds: number[]): Promise<Map<numb
 		if (u < lo) lo = u;
 		if (u > hi) hi = u;
 	}
-	const rows = await db().query<{ id: string; serial: string }>(
-		'SELECT id, serial FROM units WHERE station_id = :sid AND id BETWEEN :lo AND :hi ORDER BY id LIMIT :cap',
+	const rows = await db().query<{ ids: string; serials: string }>(
+		`SELECT '[' || coalesce(string_agg(id::text, ','), '') || ']' AS ids, coalesce(json_agg(serial), '[]')::text AS serials
+		 FROM (SELECT id, serial FROM units WHERE station_id = :sid AND id BETWEEN :lo AND :hi ORDER BY id LIMIT :cap) x`,
 		{ replacements: { sid: stationId, lo, hi, cap: 4 * unitIds.length + 100 }, type: QueryTypes.SELECT }
 	);
-	for (const r of rows) found.set(Number(r.id), r.serial);
+	const ids = JSON.parse(rows[0]?.ids ?? '[]') as number[];
+	const serials = JSON.parse(rows[0]?.serials ?? '[]') as string[];
+	ids.forEach((u, i) => found.set(u, serials[i] ?? ''));
 	const missing = unitIds.filter((u) => !found.has(u));
 	if (missing.length) {
 		const more = await db().query<{ id: string; serial: string }>('SELECT id, serial FROM units WHERE id = ANY(ARRAY[:ids]::bigint[])', {
@@ -163,34 +167,101 @@ async function serialsOf(stationId: string, unitIds: number[]): Promise<Map<numb
 	return found;
 }
 
-/** A chart's newest `limit` points (or those from `fromSeq`) in the view asked for. */
-export async function chartDetail(id: number, view: ChartView, opts: { limit: number; fromSeq?: number; from?: string; to?: string }): Promise<ChartDetail | null> {
-	const row = await chartRow(id);
-	if (!row) return null;
+export type ChartRange = { limit: number; fromSeq?: number; from?: string; to?: string };
+
+/**
+ * A chart's points as JSON texts made by PostgreSQL, one per column, in seq order: the newest
+ * `limit` points (or the first `limit` from `fromSeq`) in the time range. One row comes back
+ * instead of one per point, and the columns the answer passes through untouched (at, unitId,
+ * limitsVersion, rules) are never parsed. `at` is in epoch milliseconds (microseconds cut, as
+ * a JavaScript Date cuts them); `rules` holds only the points that broke a rule, by seq.
+ */
+type PointText = { n: number; seq: string; value: string; at: string; unitId: string; limitsVersion: string; rules: string };
+
+const NO_POINTS: PointText = { n: 0, seq: '[]', value: '[]', at: '[]', unitId: '[]', limitsVersion: '[]', rules: '{}' };
+
+async function pointText(id: number, opts: ChartRange): Promise<PointText> {
 	// A time range reads through chart_points_at_idx (chart_id, at).
 	const range = `${opts.from ? ' AND p.at >= :from' : ''}${opts.to ? ' AND p.at < :to' : ''}`;
-	const pointRows = await db().query<{ seq: number; value: number; at: Date; unit_id: string; rules: string[]; limits_version: number }>(
+	const replacements = { id, limit: opts.limit, fromSeq: opts.fromSeq, from: opts.from, to: opts.to };
+	// First the seq range of the points asked for (an index-only scan of the primary key), so
+	// the two column statements below read exactly the same points: points are only appended.
+	const window =
 		opts.fromSeq === undefined
-			? `SELECT p.seq, p.value, p.at, p.unit_id, p.rules, p.limits_version FROM chart_points p
-			   WHERE p.chart_id = :id${range} ORDER BY p.seq DESC LIMIT :limit`
-			: `SELECT p.seq, p.value, p.at, p.unit_id, p.rules, p.limits_version FROM chart_points p
-			   WHERE p.chart_id = :id AND p.seq >= :fromSeq${range} ORDER BY p.seq LIMIT :limit`,
-		{ replacements: { id, limit: opts.limit, fromSeq: opts.fromSeq, from: opts.from, to: opts.to }, type: QueryTypes.SELECT }
-	);
-	if (opts.fromSeq === undefined) pointRows.reverse();
-	const serials = await serialsOf(row.station_id, pointRows.map((p) => Number(p.unit_id)));
-	const points = pointRows.map((p) => ({ seq: p.seq, value: p.value, at: p.at.toISOString(), serial: serials.get(Number(p.unit_id)) ?? '', unitId: Number(p.unit_id), rules: p.rules, limitsVersion: p.limits_version }));
+			? `SELECT p.seq FROM chart_points p WHERE p.chart_id = :id${range} ORDER BY p.seq DESC LIMIT :limit`
+			: `SELECT p.seq FROM chart_points p WHERE p.chart_id = :id AND p.seq >= :fromSeq${range} ORDER BY p.seq LIMIT :limit`;
+	const bounds = (await db().query<{ n: number; lo: number | null; hi: number | null }>(`SELECT count(*)::int AS n, min(seq) AS lo, max(seq) AS hi FROM (${window}) w`, { replacements, type: QueryTypes.SELECT }))[0];
+	if (!bounds || bounds.n === 0 || bounds.lo === null || bounds.hi === null) return NO_POINTS;
+	// An ascending range scan of (chart_id, seq): the aggregates read the points in seq order.
+	const source = `FROM (SELECT p.seq, p.value, p.at, p.unit_id, p.rules, p.limits_version FROM chart_points p
+	   WHERE p.chart_id = :id AND p.seq BETWEEN :lo AND :hi${range} ORDER BY p.seq) x`;
+	const list = (expr: string) => `'[' || coalesce(string_agg(${expr}, ','), '') || ']'`;
+	const within = { ...replacements, lo: bounds.lo, hi: bounds.hi };
+	// Two statements on two connections, so both cores turn numbers into text. Epoch ms: the
+	// epoch seconds (a double, exact to well under 1 µs today) times 1000, plus half a
+	// microsecond so a whole millisecond never falls just below itself, cut to the millisecond.
+	const [first, second] = await Promise.all([
+		db().query<Pick<PointText, 'n' | 'seq' | 'value' | 'rules'>>(
+			`SELECT count(*)::int AS n, ${list('seq::text')} AS seq, ${list('value::text')} AS value,
+			   coalesce(json_object_agg(seq, rules) FILTER (WHERE cardinality(rules) > 0), '{}'::json)::text AS rules ${source}`,
+			{ replacements: within, type: QueryTypes.SELECT }
+		),
+		db().query<Pick<PointText, 'n' | 'at' | 'unitId' | 'limitsVersion'>>(
+			`SELECT count(*)::int AS n, ${list("floor(date_part('epoch', at) * 1000 + 0.0005)::bigint::text")} AS at,
+			   ${list('unit_id::text')} AS "unitId", ${list('limits_version::text')} AS "limitsVersion" ${source}`,
+			{ replacements: within, type: QueryTypes.SELECT }
+		)
+	]);
+	const a = first[0];
+	const b = second[0];
+	if (!a || !b || a.n !== bounds.n || b.n !== bounds.n) throw new Error(`Chart ${id}: the point columns disagree on the points`);
+	return { n: a.n, seq: a.seq, value: a.value, rules: a.rules, at: b.at, unitId: b.unitId, limitsVersion: b.limitsVersion };
+}
+
+async function limitsHistoryOf(id: number): Promise<ChartDetail['limitsHistory']> {
 	const history = await db().query<{ version: number; from_seq: number; to_seq: number; reason: string; exclusions: { seq: number; reason: string }[]; created_at: Date; email: string | null }>(
 		`SELECT l.version, l.from_seq, l.to_seq, l.reason, l.exclusions, l.created_at, u.email FROM chart_limits l LEFT JOIN users u ON u.id = l.created_by
 		 WHERE l.chart_id = :id ORDER BY l.version DESC`,
 		{ replacements: { id }, type: QueryTypes.SELECT }
 	);
+	return history.map((h) => ({
+		version: h.version,
+		fromSeq: h.from_seq,
+		toSeq: h.to_seq,
+		reason: h.reason,
+		exclusions: h.exclusions,
+		createdAt: h.created_at.toISOString(),
+		createdBy: h.email
+	}));
+}
+
+/** Everything of a chart's answer but its points, and the points' seq and value columns. */
+type ChartParts = Omit<ChartDetail, 'points'> & { row: ChartRow; text: PointText; seq: number[]; values: number[]; timings: ChartTimings };
+
+/** Where a chart answer's time went, in ms (Server-Timing of the columnar answer). */
+export type ChartTimings = { sql: number; parse: number; view: number; capability: number; json?: number };
+
+async function chartParts(id: number, view: ChartView, opts: ChartRange): Promise<ChartParts | null> {
+	const t0 = performance.now();
+	const [row, text, history] = await Promise.all([chartRow(id), pointText(id, opts), limitsHistoryOf(id)]);
+	if (!row) return null;
+	const t1 = performance.now();
+	const seq = JSON.parse(text.seq) as number[];
+	const values = JSON.parse(text.value) as number[];
+	// PostgreSQL aggregates a sorted subquery in its order; say so loudly if that ever changes.
+	for (let i = 1; i < seq.length; i++) if ((seq[i] ?? 0) <= (seq[i - 1] ?? 0)) throw new Error(`Chart ${id}: points out of seq order`);
 	const spec = specOf(row.plan, row.characteristic);
-	const values = points.map((p) => p.value);
-	const data = await viewData(row, view, points);
+	const t2 = performance.now();
+	const data = await viewData(row, view, seq, values);
+	const t3 = performance.now();
 	const hasSpec = spec.lowerSpecLimit !== undefined || spec.upperSpecLimit !== undefined;
 	const cap = hasSpec && values.length >= 2 ? capability(values, spec, { processInControl: Number(row.open_alarms) === 0 }) : null;
 	return {
+		row,
+		text,
+		seq,
+		values,
+		timings: { sql: t1 - t0, parse: t2 - t1, view: t3 - t2, capability: performance.now() - t3 },
 		chart: {
 			id: Number(row.id),
 			station: row.station,
@@ -204,30 +275,81 @@ export async function chartDetail(id: number, view: ChartView, opts: { limit: nu
 			openAlarms: Number(row.open_alarms)
 		},
 		limits: row.limits,
-		limitsHistory: history.map((h) => ({
-			version: h.version,
-			fromSeq: h.from_seq,
-			toSeq: h.to_seq,
-			reason: h.reason,
-			exclusions: h.exclusions,
-			createdAt: h.created_at.toISOString(),
-			createdBy: h.email
-		})),
+		limitsHistory: history,
 		spec,
-		points,
 		data,
 		capability: cap?.ok ? cap.value : null,
 		capabilityNote: !hasSpec ? 'No spec limits for this characteristic' : cap && !cap.ok ? cap.error.message : cap ? null : 'Too few points'
 	};
 }
 
-async function viewData(row: ChartRow, view: ChartView, points: ChartPoint[]): Promise<ChartDetail['data']> {
-	const values = points.map((p) => p.value);
+/** A chart's newest `limit` points (or those from `fromSeq`) in the view asked for: a record per point. */
+export async function chartDetail(id: number, view: ChartView, opts: ChartRange): Promise<ChartDetail | null> {
+	const parts = await chartParts(id, view, opts);
+	if (!parts) return null;
+	const { row, text, seq, values, timings: _timings, ...head } = parts;
+	const at = JSON.parse(text.at) as number[];
+	const unitIds = JSON.parse(text.unitId) as number[];
+	const versions = JSON.parse(text.limitsVersion) as number[];
+	const rules = JSON.parse(text.rules) as Record<string, string[]>;
+	const serials = await serialsOf(row.station_id, unitIds);
+	const points = seq.map((s, i) => {
+		const unitId = unitIds[i] ?? 0;
+		return { seq: s, value: values[i] ?? 0, at: new Date(at[i] ?? 0).toISOString(), serial: serials.get(unitId) ?? '', unitId, rules: rules[s] ?? [], limitsVersion: versions[i] ?? 0 };
+	});
+	return { chart: head.chart, limits: head.limits, limitsHistory: head.limitsHistory, spec: head.spec, points, data: head.data, capability: head.capability, capabilityNote: head.capabilityNote };
+}
+
+/** The lists of records in each view's data, with their fields (the columnar answer's columns). */
+const VIEW_LISTS: Record<ChartView, Record<string, readonly string[]>> = {
+	imr: { movingRange: ['seq', 'value'] },
+	'xbar-r': { subgroups: ['firstSeq', 'mean', 'dispersion'] },
+	'xbar-s': { subgroups: ['firstSeq', 'mean', 'dispersion'] },
+	ewma: { series: ['seq', 'ewma', 'upper', 'lower', 'beyond'] },
+	cusum: { series: ['seq', 'upper', 'lower', 'signalUpper', 'signalLower'] },
+	p: { series: ['index', 'value', 'lcl', 'ucl', 'beyond'] }
+};
+
+/** The view data with each list of records as a record of lists, field by field (an error stays as it is). */
+export function columnsOf(data: ChartDetail['data']): Record<string, unknown> {
+	if ('error' in data) return data;
+	const lists = VIEW_LISTS[data.view];
+	const out: Record<string, unknown> = {};
+	for (const [key, v] of Object.entries(data)) {
+		const fields = lists[key];
+		out[key] = fields && Array.isArray(v) ? Object.fromEntries(fields.map((f) => [f, v.map((x: Record<string, unknown>) => x[f])])) : v;
+	}
+	return out;
+}
+
+/**
+ * The columnar answer (`shape=columns`): the same header, view and capability as chartDetail,
+ * with the points as a record of lists (seq, value, at in epoch ms, unitId, limitsVersion, and
+ * rules only for the points that broke one, by seq) and every list of records in the view data
+ * as a record of lists. No serials: a point's part is its unitId. Returned as the JSON text
+ * itself, the point columns spliced in as PostgreSQL wrote them.
+ */
+export async function chartColumnsJson(id: number, view: ChartView, opts: ChartRange): Promise<{ body: string; timings: ChartTimings } | null> {
+	const parts = await chartParts(id, view, opts);
+	if (!parts) return null;
+	const { text } = parts;
+	const t0 = performance.now();
+	const head = JSON.stringify({ chart: parts.chart, limits: parts.limits, limitsHistory: parts.limitsHistory, spec: parts.spec });
+	const tail = JSON.stringify({ data: columnsOf(parts.data), capability: parts.capability, capabilityNote: parts.capabilityNote });
+	const points = `{"seq":${text.seq},"value":${text.value},"at":${text.at},"unitId":${text.unitId},"limitsVersion":${text.limitsVersion},"rules":${text.rules}}`;
+	const body = `${head.slice(0, -1)},"points":${points},${tail.slice(1)}`;
+	return { body, timings: { ...parts.timings, json: performance.now() - t0 } };
+}
+
+/** The columnar answer's points (see chartColumnsJson). */
+export type ChartPointColumns = { seq: number[]; value: number[]; at: number[]; unitId: number[]; limitsVersion: number[]; rules: Record<string, string[]> };
+
+async function viewData(row: ChartRow, view: ChartView, seqs: readonly number[], values: readonly number[]): Promise<ChartDetail['data']> {
 	const limits = row.limits;
 	const n = row.plan.spc?.subgroupSize ?? DEFAULT_SUBGROUP_SIZE;
 	switch (view) {
 		case 'imr': {
-			const mr = points.map((p, i) => ({ seq: p.seq, value: i === 0 ? null : Math.abs(p.value - (points[i - 1]?.value ?? p.value)) }));
+			const mr = seqs.map((seq, i) => ({ seq, value: i === 0 ? null : Math.abs((values[i] ?? 0) - (values[i - 1] ?? values[i] ?? 0)) }));
 			const c = controlChartConstants(2);
 			if (!limits || !c.ok) return { view, movingRange: mr, mrLimits: null };
 			// MR̄ = d2·sigma for span 2; UCL = D4·MR̄, LCL = D3·MR̄ = 0.
@@ -251,14 +373,14 @@ async function viewData(row: ChartRow, view: ChartView, points: ChartPoint[]): P
 				subgroupSize: n,
 				xbar: fit.value.xbar,
 				dispersion: fit.value.dispersion,
-				subgroups: shown.value.subgroups.map((s) => ({ firstSeq: points[s.startIndex]?.seq ?? 0, mean: s.mean, dispersion: view === 'xbar-r' ? s.range : s.standardDeviation }))
+				subgroups: shown.value.subgroups.map((s) => ({ firstSeq: seqs[s.startIndex] ?? 0, mean: s.mean, dispersion: view === 'xbar-r' ? s.range : s.standardDeviation }))
 			};
 		}
 		case 'ewma': {
 			if (!limits?.ewma) return { view, error: 'The chart has no frozen limits yet' };
 			const s = ewmaSeries(values, limits.ewma);
 			if (!s.ok) return { view, error: s.error.message };
-			return { view, series: s.value.map((p, i) => ({ seq: points[i]?.seq ?? i, ewma: p.ewma, upper: p.upperControlLimit, lower: p.lowerControlLimit, beyond: p.beyond })) };
+			return { view, series: s.value.map((p, i) => ({ seq: seqs[i] ?? i, ewma: p.ewma, upper: p.upperControlLimit, lower: p.lowerControlLimit, beyond: p.beyond })) };
 		}
 		case 'cusum': {
 			if (!limits?.cusum) return { view, error: 'The chart has no frozen limits yet' };
@@ -267,7 +389,7 @@ async function viewData(row: ChartRow, view: ChartView, points: ChartPoint[]): P
 			return {
 				view,
 				decisionInterval: limits.cusum.decisionH * limits.cusum.sigma,
-				series: s.value.map((p, i) => ({ seq: points[i]?.seq ?? i, upper: p.upper, lower: p.lower, signalUpper: p.signalUpper, signalLower: p.signalLower }))
+				series: s.value.map((p, i) => ({ seq: seqs[i] ?? i, upper: p.upper, lower: p.lower, signalUpper: p.signalUpper, signalLower: p.signalLower }))
 			};
 		}
 		case 'p': {
