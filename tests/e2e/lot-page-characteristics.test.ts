@@ -77,10 +77,38 @@ describe('lot page characteristics', () => {
 		// One part 1.5 % high: still good, and it moves every mean and spread.
 		const answer = (await line.post([line.part(0.015)])) as unknown as { results: PostedPart[] };
 		const now = [...posted, ...answer.results];
+		posted = now;
 		for (const base of [baseUrl(), baseUrlB()]) {
 			const after = await pageFigures(base);
 			expectFigures(after, now);
 			expect(after.cpk.get('C@1V')).not.toBe(before.cpk.get('C@1V'));
 		}
+	});
+});
+
+describe('lot units API (read in the lot index order)', () => {
+	type UnitsAnswer = { total: number; units: { serial: string; bin: number }[] };
+	const units = async (q: string) => {
+		const res = await fetch(`${baseUrl()}/api/v1/lots/${encodeURIComponent(line.lotNumber)}/units${q}`, { headers: { cookie: await cookieOnce('operator') } });
+		expect(res.status).toBe(200);
+		return (await res.json()) as UnitsAnswer;
+	};
+	const newestFirst = () => posted.map((p) => p.serial).reverse();
+
+	test('every part newest first, and offset pages are slices of that order', async () => {
+		const all = await units('?limit=1000');
+		expect(all.total).toBe(posted.length);
+		expect(all.units.map((u) => u.serial)).toEqual(newestFirst());
+		const page = await units('?limit=7&offset=7');
+		expect(page.units.map((u) => u.serial)).toEqual(newestFirst().slice(7, 14));
+	});
+
+	test('one bin: exactly its parts, newest first', async () => {
+		const failing = posted.filter((p) => p.bin === 2).map((p) => p.serial).reverse();
+		expect(failing.length).toBeGreaterThan(0);
+		const page = await units('?bin=2&limit=1000');
+		expect(page.total).toBe(failing.length);
+		expect(page.units.map((u) => u.serial)).toEqual(failing);
+		expect((await units('?bin=2&limit=2&offset=1')).units.map((u) => u.serial)).toEqual(failing.slice(1, 3));
 	});
 });
