@@ -31,7 +31,8 @@ const sameBias = (a: number, b: number) => Math.abs(a - b) <= 1e-6;
  * (lot_id >= :lotId AND lot_id <= :lotId) and the order as (lot_id, id): with `lot_id = :lotId`
  * the planner drops lot_id from the order and may walk the primary key instead, filtering on
  * lot_id, which reads every part of the other lots stored before (or after) this one first
- * (seconds with a million of them). Only units_lot_idx gives this order, so it is used.
+ * (0.3–0.5 s past 1.5 M of them on a scratch table, more with full rows). Only units_lot_idx
+ * gives this order, so it is used.
  */
 const LOT_RANGE = 'u.lot_id >= :lotId AND u.lot_id <= :lotId';
 
