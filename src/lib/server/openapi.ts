@@ -261,9 +261,18 @@ function build() {
 		method: 'get',
 		path: '/api/v1/charts/{id}',
 		summary: 'A chart: points, frozen limits, the chosen view (imr, xbar-r, xbar-s, ewma, cusum, p) and capability',
+		description:
+			'shape=rows (default) gives a record per point. shape=columns gives the same answer with the points as lists (seq, value, at in epoch ms, unitId, limitsVersion; rules only for the points that broke a rule, keyed by seq; no serials) and each list of records in data as a record of lists; about a third of the size, for long ranges (limit up to 100 000). Server-Timing says where its time went.',
 		security: [{ session: [] }],
 		request: { params: z.object({ id: z.string() }), query: ChartQuery },
-		responses: { 200: ok('Chart detail'), ...problems(400, 401, 403, 404) }
+		responses: {
+			200: ok('Chart detail', {
+				chart: { id: 3, station: 'A-01', characteristic: 'C@1V', unit: 'pF' },
+				points: { seq: [418, 419], value: [27.31, 27.36], at: [1764633600000, 1764633601250], unitId: [90211, 90212], limitsVersion: [1, 1], rules: { '419': ['WE1'] } },
+				data: { view: 'imr', movingRange: { seq: [418, 419], value: [null, 0.05] } }
+			}),
+			...problems(400, 401, 403, 404)
+		}
 	});
 	r.registerPath({
 		method: 'post',
