@@ -5,6 +5,7 @@
 import http from 'node:http';
 import fs from 'node:fs';
 import { randomUUID } from 'node:crypto';
+import { gauss, prng } from '../support/prng';
 
 const pF = 1e-12;
 export const FIXTURE = { inductanceH: 100e-6, strayF: 3 * pF, blockingF: 100e-9, arrangement: 'single' as const };
@@ -70,15 +71,26 @@ export async function setUpLine(base: string, n: number, tag = randomUUID().slic
 }
 
 let serial = 0;
-/** One 8-point part with bandwidths and leakage, slightly different from the previous one. */
+const rand = prng(20261202);
+/**
+ * One 8-point part with bandwidths and leakage from a process in control: independent normal
+ * scatter of 0.3 % in size and 0.1 % reading noise per point, no drift (a line that runs as it
+ * should). The control rules still fire now and then (each rule's false-alarm rate), and those
+ * posts open or extend alarms. The reading noise matters: with a pure scale factor the ratio
+ * C1/C25 would not vary, its chart would freeze limits of zero width, and every float rounding
+ * would break a rule.
+ */
 export function unit(lot: string, prefix = '') {
 	serial++;
-	const k = 1 + (((serial * 7919) % 100) - 50) / 10_000;
+	const k = 1 + 0.003 * gauss(rand);
 	return {
 		serial: `${lot}-${prefix}${serial}`,
 		testedAt: new Date().toISOString(),
 		leakageA: 2e-10,
-		points: BIASES.map((v) => ({ biasV: v, resonanceHz: resonance(partF(v, k)), bandwidthHz: resonance(partF(v, k)) / 250 }))
+		points: BIASES.map((v) => {
+			const f = resonance(partF(v, k) * (1 + 0.001 * gauss(rand)));
+			return { biasV: v, resonanceHz: f, bandwidthHz: f / 250 };
+		})
 	};
 }
 

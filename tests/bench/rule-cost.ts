@@ -6,7 +6,7 @@
 // server at BENCH_URL with its database at BENCH_DATABASE_URL (npm run bench sets both).
 import { randomUUID } from 'node:crypto';
 import pg from 'pg';
-import { gauss, prng } from '../support/prng';
+import { BIASES, FIXTURE, resonance, unit } from './line';
 
 const base = process.env.BENCH_URL ?? '';
 if (!base) throw new Error('BENCH_URL is not set: run npm run bench');
@@ -15,11 +15,7 @@ const FILL = Number(process.env.BENCH_RULE_FILL ?? 1_000_000);
 // Points added to each chart: far past any rule window (15 points), so the history is long.
 const CHART_FILL = Number(process.env.BENCH_RULE_CHART_FILL ?? 100_000);
 const pF = 1e-12;
-const FIXTURE = { inductanceH: 100e-6, strayF: 3 * pF, blockingF: 100e-9, arrangement: 'single' as const };
-const BIASES = [1, 2, 3, 4, 6, 8, 15, 25];
 const ALL_RULES = ['WE1', 'WE2', 'WE3', 'WE4', 'N1', 'N2', 'N3', 'N4', 'N5', 'N6', 'N7', 'N8', 'EWMA', 'CUSUM+', 'CUSUM-'];
-const partF = (v: number, k: number) => ((40 * pF) / Math.sqrt(1 + v / 0.75) + 0.3 * pF) * k;
-const resonance = (c: number) => 1 / (2 * Math.PI * Math.sqrt(FIXTURE.inductanceH * (FIXTURE.strayF + (c * FIXTURE.blockingF) / (c + FIXTURE.blockingF))));
 
 function pct(xs: number[], p: number): number {
 	const s = [...xs].sort((a, b) => a - b);
@@ -53,23 +49,6 @@ async function setup() {
 		await call('/api/v1/lots', { number: lots[which], productCode: code, quantity: 10_000_000 }, { cookie });
 	}
 	return { token, lots };
-}
-
-let serial = 0;
-const rand = prng(20261201);
-function unit(lot: string) {
-	serial++;
-	// A process in control: independent normal scatter of 0.3 %, no drift. The rules still fire
-	// now and then (each rule's false-alarm rate), and those posts open or extend alarms.
-	// Each point also has its own 0.1 % reading noise: with a pure scale factor the ratio C1/C25
-	// would not vary at all, its chart would freeze limits of zero width, and every float
-	// rounding would break a rule.
-	const k = 1 + 0.003 * gauss(rand);
-	return {
-		serial: `${lot}-${serial}`,
-		testedAt: new Date().toISOString(),
-		points: BIASES.map((v) => ({ biasV: v, resonanceHz: resonance(partF(v, k) * (1 + 0.001 * gauss(rand))) }))
-	};
 }
 
 async function post(token: string, lot: string) {

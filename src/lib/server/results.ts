@@ -9,7 +9,7 @@ import { db } from './db';
 import { run, statement } from './db/prepared';
 import { EVENT_CHANNEL, publish, type NewEvent } from './events';
 import { queueAlarmMail } from './mail/notify';
-import { chartsOfSql, chartWork, chartWriteCtes, createCharts, hasCharts, openBatchAlarms, stepCharts, type ChartRow, type OpenedAlarm, type SpcUnit } from './spc';
+import { ALARM_EXTENSION_CTE, alarmExtensions, chartsOfSql, chartWork, chartWriteCtes, createCharts, hasCharts, openBatchAlarms, stepCharts, type ChartRow, type OpenedAlarm, type SpcUnit } from './spc';
 import { ingestStudyBatch } from './studies';
 
 export type UnitAnswer = {
@@ -76,6 +76,8 @@ type IngestContext = {
 	ids: string[];
 	/** The station's charts of the lot's product, as they were when read (no lock). */
 	charts: ChartRow[] | null;
+	/** The open alarms of those charts: a violation of one of them only extends it. */
+	open_alarms: { chart_id: string; rule: string }[] | null;
 };
 
 const CONTEXT = statement(
@@ -93,7 +95,9 @@ const CONTEXT = statement(
 	                     FROM plan_versions v WHERE v.product_id = l.product_id))
 	      FROM lots l JOIN products p ON p.id = l.product_id WHERE l.number = $3) AS lot,
 	   ARRAY(SELECT nextval('units_id_seq') FROM generate_series(1, $4)) AS ids,
-	   (SELECT json_agg(c) FROM (${chartsOfSql('$1', '(SELECT l.product_id FROM lots l WHERE l.number = $3)')}) c) AS charts`
+	   (SELECT json_agg(c) FROM (${chartsOfSql('$1', '(SELECT l.product_id FROM lots l WHERE l.number = $3)')}) c) AS charts,
+	   (SELECT json_agg(json_build_object('chart_id', a.chart_id, 'rule', a.rule)) FROM alarms a JOIN charts c ON c.id = a.chart_id
+	      WHERE c.station_id = $1 AND c.product_id = (SELECT l.product_id FROM lots l WHERE l.number = $3) AND a.status <> 'closed') AS open_alarms`
 );
 
 async function ingestContext(stationId: number, key: string, lotNumber: string, parts: number): Promise<IngestContext> {
@@ -139,9 +143,11 @@ export function unitRow(
  * Writes the batch in one statement: claims the idempotency key, checks the lot is open (and
  * holds it open until commit), writes the parts, chart points, limits and chart state, the
  * station's bin counters, the station, and (with no alarm to open) the events and their
- * notification; returns the lot's and the station's yield figures after the batch. The guard
+ * notification, and extends the open alarms its violations belong to; returns the lot's and the
+ * station's yield figures after the batch. The guard
  * (migration 0012) undoes it all when the key was taken meanwhile (a concurrent post with the
- * same key waits at the claim until the other ends), the lot closed, or a chart moved.
+ * same key waits at the claim until the other ends), the lot closed, or a chart moved (or an
+ * alarm it meant to extend was closed).
  */
 const WRITE_BATCH = statement(
 	'ingest-write',
@@ -187,8 +193,9 @@ const WRITE_BATCH = statement(
 	     'lotYieldPct', CASE WHEN f.lot_tested > 0 THEN CAST(100.0 * f.lot_passed / f.lot_tested AS float8) END,
 	     'stationYieldPct', CASE WHEN f.window_n > 0 THEN CAST(100.0 * f.window_passed / f.window_n AS float8) END, 'stationWindow', f.window_n)
 	   FROM figures f WHERE CAST($11 AS boolean) AND CAST($14 AS boolean)
-	   RETURNING id)
-	 SELECT ingest_guard((SELECT count(*) FROM claim), (SELECT count(*) FROM lot_open), (SELECT count(*) FROM chs), $18) AS guarded, f.*,
+	   RETURNING id),
+	 ${ALARM_EXTENSION_CTE('$19')}
+	 SELECT ingest_guard((SELECT count(*) FROM claim), (SELECT count(*) FROM lot_open), (SELECT count(*) FROM chs) + (SELECT count(*) FROM ext), $18) AS guarded, f.*,
 	   (SELECT pg_notify('${EVENT_CHANNEL}', CAST(max(id) AS text)) FROM ev HAVING count(*) > 0) AS notified FROM figures f`
 );
 
@@ -328,9 +335,12 @@ async function ingestOnce(
 		lot_id: lot.id,
 		payload: { serial: r.serial, lot: lot.number, station: station.name, bin: r.bin, pass: r.pass, testedAt: r.tested_at, kind: r.kind }
 	}));
-	// With no alarm to open, the events go out in the same statement as the parts.
+	// With no alarm to open (no violation, or only ones of alarms already open, which the write
+	// extends), the events go out in the same statement as the parts and nothing else runs.
 	const violations = writes.pending.length;
-	const eventsHere = violations === 0;
+	const open = new Set((ctx.open_alarms ?? []).map((a) => `${a.chart_id}|${a.rule}`));
+	const eventsHere = writes.pending.every((p) => open.has(`${p.chart.id}|${p.violation.ruleId}`));
+	const extensions = eventsHere ? alarmExtensions(writes.pending) : [];
 	const values = [
 		JSON.stringify(records),
 		JSON.stringify(writes.points),
@@ -349,7 +359,8 @@ async function ingestOnce(
 		key,
 		hash,
 		JSON.stringify(response),
-		writes.charts.length
+		writes.charts.length + extensions.length,
+		JSON.stringify(extensions)
 	];
 	type Figures = { lot_tested: string; lot_passed: string; window_n: string; window_passed: string };
 	const writeStart = performance.now();

@@ -226,6 +226,31 @@ export function chartWriteCtes(p: { points: string; charts: string; limits: stri
 	];
 }
 
+/** A batch's violations of alarms already open, one row per alarm: its newest point and how many violations. */
+export function alarmExtensions(pending: Pending[]): { chart_id: string; rule: string; seq: number; n: number }[] {
+	const byAlarm = new Map<string, { chart_id: string; rule: string; seq: number; n: number }>();
+	for (const { chart, violation, seq } of pending) {
+		const k = `${chart.id}|${violation.ruleId}`;
+		const e = byAlarm.get(k);
+		if (e) {
+			e.seq = Math.max(e.seq, seq);
+			e.n++;
+		} else byAlarm.set(k, { chart_id: chart.id, rule: violation.ruleId, seq, n: 1 });
+	}
+	return [...byAlarm.values()];
+}
+
+/**
+ * The write statement's CTE `ext` that extends open alarms as openAlarms would (newest point,
+ * one more occurrence per violation), from alarmExtensions as JSON in parameter `p`; returns a
+ * row per alarm extended.
+ */
+export const ALARM_EXTENSION_CTE = (p: string) => `ext AS (
+	   UPDATE alarms a SET last_seq = GREATEST(a.last_seq, x.seq), occurrences = a.occurrences + x.n, last_at = now()
+	   FROM jsonb_to_recordset(CAST(${p} AS jsonb)) AS x(chart_id bigint, rule text, seq integer, n integer)
+	   WHERE a.chart_id = x.chart_id AND a.rule = x.rule AND a.status <> 'closed'
+	   RETURNING a.id)`;
+
 /** Opens (or extends) the alarms of a batch's violations; returns the ones it opened. */
 export function openBatchAlarms(t: Transaction, stationId: number, writes: ChartWrites): Promise<OpenedAlarm[]> {
 	return writes.pending.length ? openAlarms(t, stationId, writes.pending) : Promise.resolve([]);
