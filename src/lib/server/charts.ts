@@ -178,44 +178,30 @@ export type ChartRange = { limit: number; fromSeq?: number; from?: string; to?: 
  */
 type PointText = { n: number; seq: string; value: string; at: string; unitId: string; limitsVersion: string; rules: string };
 
-const NO_POINTS: PointText = { n: 0, seq: '[]', value: '[]', at: '[]', unitId: '[]', limitsVersion: '[]', rules: '{}' };
-
 async function pointText(id: number, opts: ChartRange): Promise<PointText> {
 	// A time range reads through chart_points_at_idx (chart_id, at).
 	const range = `${opts.from ? ' AND p.at >= :from' : ''}${opts.to ? ' AND p.at < :to' : ''}`;
-	const replacements = { id, limit: opts.limit, fromSeq: opts.fromSeq, from: opts.from, to: opts.to };
-	// First the seq range of the points asked for (an index-only scan of the primary key), so
-	// the two column statements below read exactly the same points: points are only appended.
-	const window =
-		opts.fromSeq === undefined
-			? `SELECT p.seq FROM chart_points p WHERE p.chart_id = :id${range} ORDER BY p.seq DESC LIMIT :limit`
-			: `SELECT p.seq FROM chart_points p WHERE p.chart_id = :id AND p.seq >= :fromSeq${range} ORDER BY p.seq LIMIT :limit`;
-	const bounds = (await db().query<{ n: number; lo: number | null; hi: number | null }>(`SELECT count(*)::int AS n, min(seq) AS lo, max(seq) AS hi FROM (${window}) w`, { replacements, type: QueryTypes.SELECT }))[0];
-	if (!bounds || bounds.n === 0 || bounds.lo === null || bounds.hi === null) return NO_POINTS;
-	// An ascending range scan of (chart_id, seq): the aggregates read the points in seq order.
-	const source = `FROM (SELECT p.seq, p.value, p.at, p.unit_id, p.rules, p.limits_version FROM chart_points p
-	   WHERE p.chart_id = :id AND p.seq BETWEEN :lo AND :hi${range} ORDER BY p.seq) x`;
+	// The newest `limit`: the seq of the limit-th newest point (an index-only scan of the primary
+	// key), then an ascending range scan of (chart_id, seq) from there, so the aggregates read
+	// the points in seq order. (Two statements on two connections, or the seq range as literals,
+	// measured no faster on the 1 M-part database: the planner then sorts a bitmap scan.)
+	const lower =
+		opts.fromSeq === undefined ? `coalesce((SELECT p.seq FROM chart_points p WHERE p.chart_id = :id${range} ORDER BY p.seq DESC OFFSET :limit - 1 LIMIT 1), 0)` : ':fromSeq';
 	const list = (expr: string) => `'[' || coalesce(string_agg(${expr}, ','), '') || ']'`;
-	const within = { ...replacements, lo: bounds.lo, hi: bounds.hi };
-	// Two statements on two connections, so both cores turn numbers into text. Epoch ms: the
-	// epoch seconds (a double, exact to well under 1 µs today) times 1000, plus half a
-	// microsecond so a whole millisecond never falls just below itself, cut to the millisecond.
-	const [first, second] = await Promise.all([
-		db().query<Pick<PointText, 'n' | 'seq' | 'value' | 'rules'>>(
-			`SELECT count(*)::int AS n, ${list('seq::text')} AS seq, ${list('value::text')} AS value,
-			   coalesce(json_object_agg(seq, rules) FILTER (WHERE cardinality(rules) > 0), '{}'::json)::text AS rules ${source}`,
-			{ replacements: within, type: QueryTypes.SELECT }
-		),
-		db().query<Pick<PointText, 'n' | 'at' | 'unitId' | 'limitsVersion'>>(
-			`SELECT count(*)::int AS n, ${list("floor(date_part('epoch', at) * 1000 + 0.0005)::bigint::text")} AS at,
-			   ${list('unit_id::text')} AS "unitId", ${list('limits_version::text')} AS "limitsVersion" ${source}`,
-			{ replacements: within, type: QueryTypes.SELECT }
-		)
-	]);
-	const a = first[0];
-	const b = second[0];
-	if (!a || !b || a.n !== bounds.n || b.n !== bounds.n) throw new Error(`Chart ${id}: the point columns disagree on the points`);
-	return { n: a.n, seq: a.seq, value: a.value, rules: a.rules, at: b.at, unitId: b.unitId, limitsVersion: b.limitsVersion };
+	// Epoch ms: the epoch seconds (a double, exact to well under 1 µs today) times 1000, plus half
+	// a microsecond so a whole millisecond never falls just below itself, cut to the millisecond.
+	const rows = await db().query<PointText>(
+		`SELECT count(*)::int AS n, ${list('seq::text')} AS seq, ${list('value::text')} AS value,
+		   ${list("floor(date_part('epoch', at) * 1000 + 0.0005)::bigint::text")} AS at,
+		   ${list('unit_id::text')} AS "unitId", ${list('limits_version::text')} AS "limitsVersion",
+		   coalesce(json_object_agg(seq, rules) FILTER (WHERE cardinality(rules) > 0), '{}'::json)::text AS rules
+		 FROM (SELECT p.seq, p.value, p.at, p.unit_id, p.rules, p.limits_version FROM chart_points p
+		       WHERE p.chart_id = :id AND p.seq >= ${lower}${range} ORDER BY p.seq LIMIT :limit) x`,
+		{ replacements: { id, limit: opts.limit, fromSeq: opts.fromSeq, from: opts.from, to: opts.to }, type: QueryTypes.SELECT }
+	);
+	const r = rows[0];
+	if (!r) throw new Error('The point aggregate returned no row');
+	return r;
 }
 
 async function limitsHistoryOf(id: number): Promise<ChartDetail['limitsHistory']> {
