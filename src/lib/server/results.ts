@@ -179,7 +179,7 @@ const WRITE_BATCH = statement(
 	 recent AS (
 	   SELECT pass FROM (
 	     SELECT id, pass FROM (SELECT id, pass FROM units WHERE station_id = $8 AND kind = 'production' ORDER BY id DESC LIMIT $9) o
-	     UNION ALL SELECT id, pass FROM jsonb_to_recordset(CAST($1 AS jsonb)) AS n(id bigint, pass boolean, kind text) WHERE n.kind = 'production'
+	     UNION ALL SELECT id, pass FROM jsonb_to_recordset(CAST($20 AS jsonb)) AS n(id bigint, pass boolean)
 	   ) w ORDER BY id DESC LIMIT $9),
 	 figures AS (
 	   SELECT (SELECT coalesce(sum(n), 0) FROM lot_now) AS lot_tested, (SELECT coalesce(sum(n) FILTER (WHERE bin = 1), 0) FROM lot_now) AS lot_passed,
@@ -360,7 +360,10 @@ async function ingestOnce(
 		hash,
 		JSON.stringify(response),
 		writes.charts.length + extensions.length,
-		JSON.stringify(extensions)
+		JSON.stringify(extensions),
+		// The batch's production parts for the rolling window (a small copy: the planner would
+		// parse the whole batch again for two fields).
+		JSON.stringify(production.map((r) => ({ id: r.id, pass: r.pass })))
 	];
 	type Figures = { lot_tested: string; lot_passed: string; window_n: string; window_passed: string };
 	const writeStart = performance.now();
