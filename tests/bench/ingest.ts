@@ -11,7 +11,7 @@ import { spawn } from 'node:child_process';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import pg from 'pg';
-import { agent, closedLoop, cpuSeconds, cpuShare, ms, paced, pct, postParts, refusals, setUpLine, waitSampler, withCpu, type LoadResult } from './line';
+import { agent, closedLoop, cpuSeconds, cpuShare, maxOf, ms, paced, pct, postParts, refusals, setUpLine, waitSampler, withCpu, type LoadResult } from './line';
 
 const base = process.env.BENCH_URL ?? '';
 const dbUrl = process.env.BENCH_DATABASE_URL ?? '';
@@ -194,7 +194,7 @@ async function storageCeiling(n: number, unitsOnly: boolean) {
 
 const fmt = (x: number) => x.toLocaleString('en-GB', { maximumFractionDigits: 0 });
 const rate = (r: { parts: number; seconds: number }) => r.parts / r.seconds;
-const lat = (xs: number[]) => `${ms(pct(xs, 50))} / ${ms(pct(xs, 95))} / ${ms(pct(xs, 99))} / ${ms(Math.max(...xs))}`;
+const lat = (xs: number[]) => `${ms(pct(xs, 50))} / ${ms(pct(xs, 95))} / ${ms(pct(xs, 99))} / ${ms(maxOf(xs))}`;
 const timing = (r: LoadResult, k: string) => ms(pct(r.timings[k] ?? [], 50));
 
 const rows: string[] = [];

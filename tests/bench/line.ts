@@ -18,6 +18,8 @@ export function pct(xs: number[], p: number): number {
 	const s = Float64Array.from(xs).sort();
 	return s[Math.min(s.length - 1, Math.floor((p / 100) * s.length))] ?? Number.NaN;
 }
+/** The largest value (Math.max(...xs) overflows the stack at a few hundred thousand values). */
+export const maxOf = (xs: readonly number[]) => xs.reduce((m, x) => (x > m ? x : m), Number.NEGATIVE_INFINITY);
 export const ms = (x: number) => (Number.isFinite(x) ? `${x.toFixed(1)} ms` : '–');
 export const sleep = (t: number) => new Promise((r) => setTimeout(r, t));
 

@@ -3,7 +3,7 @@
 // built server at BENCH_URL; the server's RSS (/proc/<pid>/status VmRSS) and heap (written by
 // heap-probe.cjs, preloaded into the server) every 30 s. Prints markdown.
 import fs from 'node:fs';
-import { ms, paced, pct, setUpLine, sleep, subscribe, type PostResult } from './line';
+import { maxOf, ms, paced, pct, setUpLine, sleep, subscribe, type PostResult } from './line';
 
 const base = process.env.BENCH_URL ?? '';
 if (!base) throw new Error('BENCH_URL is not set: run npm run bench -- --soak <minutes>');
@@ -76,7 +76,7 @@ const verdict = (g: number) => (!Number.isFinite(g) ? 'no samples' : g <= 10 ? '
 const out = [
 	`## Soak: ${minutes} min, ${rate} parts/s from ${STATIONS} stations (single-part posts), ${SUBSCRIBERS} stream subscribers`,
 	'',
-	`Posted ${run.posts} parts in ${(run.seconds / 60).toFixed(0)} min (${(run.parts / run.seconds).toFixed(0)} parts/s), posts that could not start on schedule (the previous answer came too late): ${run.late}. Bin answer over the whole soak: p50 ${ms(pct(run.latencies, 50))}, p99 ${ms(pct(run.latencies, 99))}, max ${ms(Math.max(...run.latencies))}.`,
+	`Posted ${run.posts} parts in ${(run.seconds / 60).toFixed(0)} min (${(run.parts / run.seconds).toFixed(0)} parts/s), posts that could not start on schedule (the previous answer came too late): ${run.late}. Bin answer over the whole soak: p50 ${ms(pct(run.latencies, 50))}, p99 ${ms(pct(run.latencies, 99))}, max ${ms(maxOf(run.latencies))}.`,
 	'',
 	'| minute | server RSS (MiB) | heap used (MiB) | heap total (MiB) | parts posted | unit events received (all subscribers) | bin answer p99 in the last 30 s |',
 	'|---|---|---|---|---|---|---|',
