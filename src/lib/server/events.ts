@@ -1,8 +1,10 @@
 // The event log: written inside the transaction that caused the events, announced with
-// pg_notify (PostgreSQL delivers it only when that transaction commits), read by every app
-// instance's listener and by reconnecting clients (Last-Event-ID).
+// pg_notify (PostgreSQL delivers it only when that transaction commits) or, for station posts,
+// with announce() after the commit; read by every app instance's listener and by reconnecting
+// clients (Last-Event-ID).
 import { QueryTypes, type Transaction } from 'sequelize';
 import { db } from './db';
+import { run, statement } from './db/prepared';
 
 export const EVENT_CHANNEL = 'biasline_events';
 /** How long events stay replayable (our choice: a shift and a half). */
@@ -27,6 +29,39 @@ export async function publish(t: Transaction, events: NewEvent[]): Promise<void>
 	);
 	const maxId = rows.reduce((m, r) => Math.max(m, Number(r.id)), 0);
 	await db().query('SELECT pg_notify(:channel, :id)', { replacements: { channel: EVENT_CHANNEL, id: String(maxId) }, transaction: t });
+}
+
+let wakeLocalHub: (() => void) | null = null;
+/** The live hub of this process registers how to wake it (live.ts). */
+export function onAnnounce(wake: () => void): void {
+	wakeLocalHub = wake;
+}
+
+/** At most one NOTIFY per this many ms from a process for announce() (our choice: far below the 250 ms a stream may take). */
+export const ANNOUNCE_EVERY_MS = 10;
+const NOTIFY = statement(
+	'announce-events',
+	`WITH quick AS (SELECT set_config('synchronous_commit', 'off', true) AS v) SELECT pg_notify('${EVENT_CHANNEL}', '') AS sent, (SELECT v FROM quick) AS quick`
+);
+let announcing = false;
+
+/**
+ * Announces events a station post has committed. A pg_notify inside the post would serialize
+ * the commits of every post: PostgreSQL holds a lock on the notification queue from the
+ * notifying commit until its WAL flush ends, which the benchmark saw as a third of a busy line's
+ * database time. Instead this process's hub is woken at once, and the other instances get one
+ * NOTIFY per ANNOUNCE_EVERY_MS at most, sent in a transaction of its own that does not wait for
+ * the disk. A lost announcement delays, never loses, an event: every hub also reads the log
+ * once a second.
+ */
+export function announce(): void {
+	wakeLocalHub?.();
+	if (announcing) return;
+	announcing = true;
+	setTimeout(() => {
+		announcing = false;
+		run(NOTIFY, []).catch(() => {});
+	}, ANNOUNCE_EVERY_MS).unref();
 }
 
 /** Publishes outside an existing transaction (alarm changes made by people). */

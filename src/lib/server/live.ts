@@ -3,7 +3,7 @@
 // hands them to the streams open on this instance.
 import pg from 'pg';
 import { settings } from './env';
-import { EVENT_CHANNEL, eventsPage, latestEventId, pruneEvents, type StoredEvent } from './events';
+import { EVENT_CHANNEL, eventsPage, latestEventId, onAnnounce, pruneEvents, type StoredEvent } from './events';
 
 export type Subscriber = { accepts: (e: StoredEvent) => boolean; push: (e: StoredEvent) => void; close: () => void };
 
@@ -21,6 +21,7 @@ class LiveHub {
 	#gap: { after: number; horizon: bigint } | null = null;
 	#recheck: ReturnType<typeof setTimeout> | null = null;
 	#prune: ReturnType<typeof setInterval> | null = null;
+	#poll: ReturnType<typeof setInterval> | null = null;
 
 	get lastId(): number {
 		return this.#lastId;
@@ -31,6 +32,11 @@ class LiveHub {
 		await this.#connect();
 		this.#prune = setInterval(() => void pruneEvents().catch(() => {}), 10 * 60_000);
 		this.#prune.unref();
+		// Posts of this process wake the hub directly; a notification from another instance, or
+		// this poll once a second, catches anything else (a lost announcement, a failed read).
+		onAnnounce(() => void this.#pull());
+		this.#poll = setInterval(() => void this.#pull(), 1_000);
+		this.#poll.unref();
 		process.once('sveltekit:shutdown', () => this.stop());
 	}
 
@@ -108,7 +114,7 @@ class LiveHub {
 			// A commit announces itself; a rollback does not, so look again shortly.
 			if (waiting) this.#recheckSoon();
 		} catch {
-			// A failed read is retried by the next notification or reconnect.
+			// A failed read is retried by the next notification, the poll, or a reconnect.
 		} finally {
 			this.#pulling = false;
 		}
@@ -131,6 +137,7 @@ class LiveHub {
 	stop(): void {
 		this.#stopped = true;
 		if (this.#prune) clearInterval(this.#prune);
+		if (this.#poll) clearInterval(this.#poll);
 		for (const s of this.#subscribers) s.close();
 		this.#subscribers.clear();
 		const client = this.#client;

@@ -7,7 +7,7 @@ import type { ResultsBodyInput } from '$lib/schemas/station-api';
 import type { StationPrincipal } from './auth';
 import { db } from './db';
 import { run, statement } from './db/prepared';
-import { EVENT_CHANNEL, publish, type NewEvent } from './events';
+import { announce, publish, type NewEvent } from './events';
 import { queueAlarmMail } from './mail/notify';
 import { ALARM_EXTENSION_CTE, alarmExtensions, chartsOfSql, chartWork, chartWriteCtes, createCharts, hasCharts, openBatchAlarms, stepCharts, type ChartRow, type OpenedAlarm, type SpcUnit } from './spc';
 import { ingestStudyBatch } from './studies';
@@ -142,9 +142,9 @@ export function unitRow(
 /**
  * Writes the batch in one statement: claims the idempotency key, checks the lot is open (and
  * holds it open until commit), writes the parts, chart points, limits and chart state, the
- * station's bin counters, the station, and (with no alarm to open) the events and their
- * notification, and extends the open alarms its violations belong to; returns the lot's and the
- * station's yield figures after the batch. The guard
+ * station's bin counters, the station, and (with no alarm to open) the events (announced after
+ * the commit, see announce()), and extends the open alarms its violations belong to; returns the
+ * lot's and the station's yield figures after the batch. The guard
  * (migration 0012) undoes it all when the key was taken meanwhile (a concurrent post with the
  * same key waits at the claim until the other ends), the lot closed, or a chart moved (or an
  * alarm it meant to extend was closed).
@@ -184,19 +184,23 @@ const WRITE_BATCH = statement(
 	 figures AS (
 	   SELECT (SELECT coalesce(sum(n), 0) FROM lot_now) AS lot_tested, (SELECT coalesce(sum(n) FILTER (WHERE bin = 1), 0) FROM lot_now) AS lot_passed,
 	     (SELECT count(*) FROM recent) AS window_n, (SELECT count(*) FILTER (WHERE pass) FROM recent) AS window_passed),
+	 -- The transaction's id before the events draw theirs (the live hub's gap rule, live.ts, needs
+	 -- every event's transaction to be older than the event): referenced from the events' filter,
+	 -- so it runs before their first id is drawn, whatever order the other CTEs run in.
+	 xid AS (SELECT txid_current() AS x),
 	 ev AS (
 	   INSERT INTO events (type, station_id, lot_id, payload)
 	   SELECT type, station_id, lot_id, payload FROM jsonb_to_recordset(CAST($10 AS jsonb)) AS x(type text, station_id bigint, lot_id bigint, payload jsonb)
-	   WHERE CAST($11 AS boolean)
+	   WHERE CAST($11 AS boolean) AND EXISTS (SELECT 1 FROM xid)
 	   UNION ALL
 	   SELECT 'yield', $8, $5, jsonb_build_object('station', CAST($12 AS text), 'lot', CAST($13 AS text), 'lotTested', f.lot_tested, 'lotPassed', f.lot_passed,
 	     'lotYieldPct', CASE WHEN f.lot_tested > 0 THEN CAST(100.0 * f.lot_passed / f.lot_tested AS float8) END,
 	     'stationYieldPct', CASE WHEN f.window_n > 0 THEN CAST(100.0 * f.window_passed / f.window_n AS float8) END, 'stationWindow', f.window_n)
-	   FROM figures f WHERE CAST($11 AS boolean) AND CAST($14 AS boolean)
+	   FROM figures f WHERE CAST($11 AS boolean) AND CAST($14 AS boolean) AND EXISTS (SELECT 1 FROM xid)
 	   RETURNING id),
 	 ${ALARM_EXTENSION_CTE('$19')}
 	 SELECT ingest_guard((SELECT count(*) FROM claim), (SELECT count(*) FROM lot_open), (SELECT count(*) FROM chs) + (SELECT count(*) FROM ext), $18) AS guarded, f.*,
-	   (SELECT pg_notify('${EVENT_CHANNEL}', CAST(max(id) AS text)) FROM ev HAVING count(*) > 0) AS notified FROM figures f`
+	   (SELECT count(*) FROM ev) AS events FROM figures f`
 );
 
 /** SQLSTATEs the write's guard raises (migration 0012). */
@@ -373,6 +377,7 @@ async function ingestOnce(
 		if (eventsHere) {
 			await run<Figures>(WRITE_BATCH, values);
 			writeMs = performance.now() - writeStart;
+			announce();
 		} else {
 			await db().transaction(async (t) => {
 				const [written] = await run<Figures>(WRITE_BATCH, values, t);
