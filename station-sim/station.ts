@@ -388,10 +388,13 @@ export class Station {
 		const model = modelForProduct(code, info.plan?.points);
 		this.#model = model;
 		const shift = faultsFor(this.config, 'badlot').reduce((acc, f) => acc + (f.value ?? 8), 0);
-		// Lot parameters depend on seed and lot only, so every station testing a lot sees the same lot.
-		this.#lotParams = sampleLotParams(model, createRng(`${String(this.config.seed)}|lot|${this.config.lot}|${model.code}`), shift);
+		// The lot and the reference part are physical things: their parameters depend on the lot
+		// (or the station) only, not on the run's seed, so every station testing a lot sees the same
+		// lot and a restarted simulator tests the same lot and reference part as before (a new seed
+		// at each start would step every chart and raise alarms). The seed drives the readings.
+		this.#lotParams = sampleLotParams(model, createRng(`lot|${this.config.lot}|${model.code}`), shift);
 		const refModel: ProductModel = { ...model, leakage: { ...model.leakage, outlierProbability: 0 } };
-		this.#referencePart = samplePart(refModel, model.nominal, createRng(`${String(this.config.seed)}|reference|${this.config.name}`));
+		this.#referencePart = samplePart(refModel, model.nominal, createRng(`reference|${this.config.name}`));
 		const nominal = info.fixture ?? DEFAULT_FIXTURE;
 		// The real fixture differs a little from its record; calibration is what finds out by how much.
 		const fixtureRng = createRng(`${String(this.config.seed)}|fixture|${this.config.name}`);
@@ -466,7 +469,7 @@ export class Station {
 		if (!next) return;
 		const model = modelForProduct(study.productCode ?? this.config.product, null);
 		const seed = String(this.config.seed);
-		const lotParams = sampleLotParams(model, createRng(`${seed}|lot|${next.lot}|${model.code}`));
+		const lotParams = sampleLotParams(model, createRng(`lot|${next.lot}|${model.code}`));
 		const part = samplePart(model, lotParams, createRng(`${seed}|study-part|${next.serial}`));
 		const periodMs = 1000 / Math.max(1e-6, this.config.rate);
 		this.#nextPartMs = Math.max(this.#nextPartMs, this.#now()) + periodMs;
