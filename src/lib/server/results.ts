@@ -246,8 +246,9 @@ export async function ingestResults(
 ): Promise<IngestOutcome> {
 	// A measurement-system study's batch: its own checks and storage (kind 'study', no charts, no yield).
 	if (body.study !== undefined) return ingestStudyBatch(principal, key, hash, body, now);
+	const post: Post = { principal, key, hash, body, now, origin };
 	for (let attempt = 1; ; attempt++) {
-		const outcome = await ingestOnce(principal, key, hash, body, now, origin);
+		const outcome = await ingestOnce(post);
 		if (outcome !== 'again') return outcome.ok && outcome.timings ? { ...outcome, timings: { ...outcome.timings, tries: attempt } } : outcome;
 		if (attempt >= MAX_TRIES) {
 			return { ok: false, status: 409, kind: 'concurrent-post', detail: 'Other posts of this station kept changing its charts; post again' };
@@ -257,15 +258,10 @@ export async function ingestResults(
 	}
 }
 
+type Post = { principal: StationPrincipal; key: string; hash: string; body: ResultsBodyInput; now: Date; origin: string };
+
 /** One try of a post; 'again' when its write found the charts moved (or a deadlock) and undid itself. */
-async function ingestOnce(
-	principal: StationPrincipal,
-	key: string,
-	hash: string,
-	body: ResultsBodyInput,
-	now: Date,
-	origin: string
-): Promise<IngestOutcome | 'again'> {
+async function ingestOnce({ principal, key, hash, body, now, origin }: Post): Promise<IngestOutcome | 'again'> {
 	const t0 = performance.now();
 	const ctx = await ingestContext(principal.id, key, body.lot, body.units.length);
 	const contextMs = performance.now() - t0;
