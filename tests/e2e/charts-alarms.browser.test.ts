@@ -3,7 +3,8 @@ import path from 'node:path';
 import type { Browser, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { baseUrl, cookieOnce as cookie, launch, screenshotDir, signedInPage, SIZES, type Who } from './helpers';
-import { abruptPartF, pF, referenceReadings, resonanceHz, type TestFixture } from './physics';
+import { abruptPartF, pF, resonanceHz, type TestFixture } from './physics';
+import { addCalibratedStation } from './line';
 
 // The Charts and Alarms screens in Chromium. Data as in spc.test.ts: a product whose first 10
 // parts freeze the limits, checking WE1 (one point beyond 3 sigma, Western Electric 1956 rule 1)
@@ -47,18 +48,7 @@ async function postUnits(units: ReturnType<typeof unit>[]) {
 }
 
 /** A station of its own with a calibration; returns its token. */
-async function newStation(name: string): Promise<string> {
-	const st = await fetch(`${baseUrl()}/api/v1/stations`, json(await cookie('admin'), 'POST', { name, fixture: FIXTURE }));
-	expect(st.status).toBe(201);
-	const stationToken = ((await st.json()) as { token: string }).token;
-	const cal = await fetch(`${baseUrl()}/api/v1/calibrations`, {
-		method: 'POST',
-		headers: { 'content-type': 'application/json', authorization: `Bearer ${stationToken}` },
-		body: JSON.stringify({ references: referenceReadings(FIXTURE) })
-	});
-	expect(cal.status).toBe(201);
-	return stationToken;
-}
+const newStation = (name: string): Promise<string> => addCalibratedStation(name, { fixture: FIXTURE });
 
 const signedIn = (who: Who, viewport: { width: number; height: number } = SIZES[0]): Promise<Page> => signedInPage(browser, who, viewport);
 

@@ -30,26 +30,33 @@ export type TestLine = {
 	post: (parts: TestPart[]) => Promise<{ results: { serial: string; pass: boolean; bin: number }[] }>;
 };
 
+/** The admin adds a station with the fixture (default the test fixture) and it calibrates from its reference readings; returns its token. */
+export async function addCalibratedStation(name: string, o: { fixture?: TestFixture; line?: string } = {}): Promise<string> {
+	const fixture = o.fixture ?? TEST_FIXTURE;
+	const st = await fetch(`${baseUrl()}/api/v1/stations`, jsonInit(await cookieOnce('admin'), 'POST', { name, ...(o.line ? { line: o.line } : {}), fixture }));
+	expect(st.status).toBe(201);
+	const token = ((await st.json()) as { token: string }).token;
+	const cal = await fetch(`${baseUrl()}/api/v1/calibrations`, {
+		method: 'POST',
+		headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
+		body: JSON.stringify({ references: referenceReadings(fixture) })
+	});
+	expect(cal.status).toBe(201);
+	return token;
+}
+
 /** Creates the line: engineer adds the product, admin the station (then calibrated), operator the lot. */
 export async function setUpLine(o: { prefix: string; plan: unknown; biases: number[]; line?: string }): Promise<TestLine> {
 	const tag = randomUUID().slice(0, 8);
 	const code = `${o.prefix}-${tag}`;
 	const stationName = `${o.prefix}S-${tag}`;
 	const lotNumber = `LT-${o.prefix}-${tag}`;
-	const [admin, engineer, operator] = await Promise.all([cookieOnce('admin'), cookieOnce('engineer'), cookieOnce('operator')]);
+	const [engineer, operator] = await Promise.all([cookieOnce('engineer'), cookieOnce('operator')]);
 	const product = await fetch(`${baseUrl()}/api/v1/products`, jsonInit(engineer, 'POST', { code, name: `${o.prefix} test part`, plan: o.plan }));
 	expect(product.status).toBe(201);
 	const productId = ((await product.json()) as { id: number }).id;
-	const st = await fetch(`${baseUrl()}/api/v1/stations`, jsonInit(admin, 'POST', { name: stationName, ...(o.line ? { line: o.line } : {}), fixture: TEST_FIXTURE }));
-	expect(st.status).toBe(201);
-	const token = ((await st.json()) as { token: string }).token;
+	const token = await addCalibratedStation(stationName, { line: o.line });
 	expect((await fetch(`${baseUrl()}/api/v1/lots`, jsonInit(operator, 'POST', { number: lotNumber, productCode: code, quantity: 1000 }))).status).toBe(201);
-	const cal = await fetch(`${baseUrl()}/api/v1/calibrations`, {
-		method: 'POST',
-		headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
-		body: JSON.stringify({ references: referenceReadings(TEST_FIXTURE) })
-	});
-	expect(cal.status).toBe(201);
 	let n = 0;
 	const part = (relative = 0): TestPart => {
 		n++;

@@ -1,8 +1,8 @@
 import { randomUUID } from 'node:crypto';
 import { beforeAll, describe, expect, test } from 'vitest';
 import { baseUrl, baseUrlB, cookieOnce } from './helpers';
-import { jsonInit, setUpLine, TEST_FIXTURE, type TestLine } from './line';
-import { pF, referenceReadings } from './physics';
+import { addCalibratedStation, setUpLine, type TestLine } from './line';
+import { pF } from './physics';
 
 // The live stream of the contract: server-sent events (WHATWG HTML, "Server-sent events":
 // fields `id`, `event`, `data`, blank line ends an event; `Last-Event-ID` on reconnect).
@@ -128,20 +128,8 @@ describe('live stream', () => {
 
 	test('ten stations posting to one lot at once: every event arrives once and in order, the lot counts every part once, yield events never overcount', async () => {
 		const own = await setUpLine({ prefix: 'STM', biases: [1, 4], plan: { points: [{ biasV: 1, minF: 20 * pF, maxF: 35 * pF }, { biasV: 4 }] } });
-		const admin = await cookieOnce('admin');
 		const tokens: string[] = [own.token];
-		for (let i = 1; i < 10; i++) {
-			const st = await fetch(`${baseUrl()}/api/v1/stations`, jsonInit(admin, 'POST', { name: `${own.stationName}-${i}`, fixture: TEST_FIXTURE }));
-			expect(st.status).toBe(201);
-			const token = ((await st.json()) as { token: string }).token;
-			const cal = await fetch(`${baseUrl()}/api/v1/calibrations`, {
-				method: 'POST',
-				headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
-				body: JSON.stringify({ references: referenceReadings(TEST_FIXTURE) })
-			});
-			expect(cal.status).toBe(201);
-			tokens.push(token);
-		}
+		for (let i = 1; i < 10; i++) tokens.push(await addCalibratedStation(`${own.stationName}-${i}`));
 		// Each station posts 3 batches of 4 parts, one of them failing (0.2× the nominal capacitance).
 		const postAs = async (token: string, s: number, b: number) => {
 			const parts = [0, 1, 2, 3].map((k) => ({ ...own.part(k === 3 ? -0.8 : 0), serial: `${own.lotNumber}-S${s}-B${b}-${k}` }));

@@ -4,9 +4,9 @@
 import { randomUUID } from 'node:crypto';
 import { expect } from 'vitest';
 import { gauss, prng } from '../support/prng';
-import { baseUrl, cookieOnce } from './helpers';
-import { jsonInit, setUpLine, TEST_FIXTURE, type TestLine } from './line';
-import { abruptPartF, pF, referenceReadings, resonanceHz } from './physics';
+import { baseUrl } from './helpers';
+import { addCalibratedStation, setUpLine, TEST_FIXTURE, type TestLine } from './line';
+import { abruptPartF, pF, resonanceHz } from './physics';
 
 export const STUDY_BIASES = [1, 4, 25];
 export const STUDY_PLAN = {
@@ -22,16 +22,7 @@ export type StudyStation = { name: string; token: string; biasRel: number };
 
 /** Adds a calibrated station with the test fixture; returns its name and token. */
 export async function addStation(name: string, biasRel = 0): Promise<StudyStation> {
-	const st = await fetch(`${baseUrl()}/api/v1/stations`, jsonInit(await cookieOnce('admin'), 'POST', { name, fixture: TEST_FIXTURE }));
-	expect(st.status).toBe(201);
-	const token = ((await st.json()) as { token: string }).token;
-	const cal = await fetch(`${baseUrl()}/api/v1/calibrations`, {
-		method: 'POST',
-		headers: { 'content-type': 'application/json', authorization: `Bearer ${token}` },
-		body: JSON.stringify({ references: referenceReadings(TEST_FIXTURE) })
-	});
-	expect(cal.status).toBe(201);
-	return { name, token, biasRel };
+	return { name, token: await addCalibratedStation(name), biasRel };
 }
 
 export type StudyLine = {

@@ -1,4 +1,5 @@
 import { describe, expect, test } from 'vitest';
+import { prng } from '$lib/prng';
 import { cusumParameters, ewmaParameters } from './charts';
 import { evaluateRules, initialRuleState, RULE_WINDOW_POINTS, step } from './rules';
 import { ALL_RULE_IDS, type ChartRuleLimits, type RuleId, type RuleState, type SpcResult, type Violation } from './types';
@@ -147,18 +148,6 @@ describe('violations name the rule, the index and a description', () => {
 	});
 });
 
-// A small deterministic generator so the random series are reproducible (mulberry32).
-function mulberry32(seed: number): () => number {
-	let a = seed >>> 0;
-	return () => {
-		a = (a + 0x6d2b79f5) >>> 0;
-		let t = a;
-		t = Math.imul(t ^ (t >>> 15), t | 1);
-		t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-		return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-	};
-}
-
 function gaussian(rand: () => number): number {
 	const u = Math.max(rand(), 1e-12);
 	return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * rand());
@@ -166,7 +155,7 @@ function gaussian(rand: () => number): number {
 
 /** Random series with shifts, trends, oscillation, hugging and exact ties mixed in. */
 function randomSeries(seed: number, length: number): number[] {
-	const rand = mulberry32(seed);
+	const rand = prng(seed);
 	const out: number[] = [];
 	let mode = 0;
 	for (let i = 0; i < length; i++) {
